@@ -1,0 +1,282 @@
+package main
+
+import (
+	"bytes"
+	"encoding/json"
+	"fmt"
+	"io"
+	"log/slog"
+	"os"
+	"path/filepath"
+	"text/tabwriter"
+
+	"github.com/spf13/cobra"
+	"golang.org/x/term"
+
+	"plumb/forward"
+	"plumb/inversion"
+	"plumb/inversion/modelfile"
+	"plumb/inversion/store"
+)
+
+// runOptions builds the execution options: a live line when stderr is a terminal, else log lines.
+func runOptions(cmd *cobra.Command, workers int) inversion.Options {
+	errw := cmd.ErrOrStderr()
+	opt := inversion.Options{Workers: workers, Log: slog.New(slog.NewTextHandler(errw, nil))}
+	if f, ok := errw.(*os.File); ok && term.IsTerminal(int(f.Fd())) {
+		opt.Live = errw
+	}
+	return opt
+}
+
+func runCmd() *cobra.Command {
+	var out string
+	var seed uint64
+	var steps, warmup, thin int64
+	var chains, workers int
+	c := &cobra.Command{
+		Use:   "run CONFIG",
+		Short: "Sample the posterior of a config and write a run folder",
+		Long: "run samples the posterior defined by CONFIG (YAML or TOML) and writes a run folder: the\n" +
+			"resolved config, Parquet sample parts, a checkpoint and a summary. Flags override the\n" +
+			"config's sampler keys, and so do PLUMB_SAMPLER_<KEY> environment variables.",
+		Args: cobra.ExactArgs(1),
+		RunE: func(cmd *cobra.Command, args []string) error {
+			ov := map[string]any{}
+			f := cmd.Flags()
+			if f.Changed("seed") {
+				ov["sampler.seed"] = seed
+			}
+			if f.Changed("steps") {
+				ov["sampler.steps"] = steps
+			}
+			if f.Changed("warmup") {
+				ov["sampler.warmup_steps"] = warmup
+			}
+			if f.Changed("thin") {
+				ov["sampler.thin"] = thin
+			}
+			if f.Changed("chains") {
+				ov["sampler.chains"] = chains
+			}
+			if f.Changed("workers") {
+				ov["sampler.workers"] = workers
+			}
+			cfg, err := inversion.Load(args[0], ov)
+			if err != nil {
+				return err
+			}
+			dir := out
+			if dir == "" {
+				dir = cfg.Output.Dir
+				if !filepath.IsAbs(dir) {
+					dir = filepath.Join(filepath.Dir(args[0]), dir)
+				}
+			}
+			if err := inversion.Start(cmd.Context(), cfg, args[0], dir, runOptions(cmd, 0)); err != nil {
+				if err == inversion.ErrInterrupted {
+					fmt.Fprintf(cmd.ErrOrStderr(), "checkpoint written; continue with: plumb resume %s\n", dir)
+				}
+				return err
+			}
+			return writeSummary(cmd.OutOrStdout(), dir, false)
+		},
+	}
+	f := c.Flags()
+	f.StringVar(&out, "out", "", "run folder (must not exist or be empty; default: output.dir of the config)")
+	f.Uint64Var(&seed, "seed", 0, "random seed (overrides sampler.seed)")
+	f.Int64Var(&steps, "steps", 0, "sweeps per chain after warm-up (overrides sampler.steps)")
+	f.Int64Var(&warmup, "warmup", 0, "warm-up sweeps per chain (overrides sampler.warmup_steps)")
+	f.Int64Var(&thin, "thin", 0, "keep every n-th sweep (overrides sampler.thin)")
+	f.IntVar(&chains, "chains", 0, "number of chains (overrides sampler.chains)")
+	f.IntVar(&workers, "workers", 0, "goroutines running chains; does not change the output (overrides sampler.workers)")
+	return c
+}
+
+func resumeCmd() *cobra.Command {
+	var workers int
+	c := &cobra.Command{
+		Use:   "resume RUN_DIR",
+		Short: "Continue an interrupted run exactly where it stopped",
+		Args:  cobra.ExactArgs(1),
+		RunE: func(cmd *cobra.Command, args []string) error {
+			if _, err := os.Stat(filepath.Join(args[0], inversion.ConfigFile)); err != nil {
+				return inputError{fmt.Errorf("%s: not a run folder (no %s)", args[0], inversion.ConfigFile)}
+			}
+			if err := inversion.Resume(cmd.Context(), args[0], runOptions(cmd, workers)); err != nil {
+				return err
+			}
+			return writeSummary(cmd.OutOrStdout(), args[0], false)
+		},
+	}
+	c.Flags().IntVar(&workers, "workers", 0, "goroutines running chains (default: the run's config); does not change the output")
+	return c
+}
+
+func summaryCmd() *cobra.Command {
+	var asJSON bool
+	c := &cobra.Command{
+		Use:   "summary RUN_DIR",
+		Short: "Print the posterior of every parameter and of the layer states; write summary.json",
+		Args:  cobra.ExactArgs(1),
+		RunE: func(cmd *cobra.Command, args []string) error {
+			if _, err := os.Stat(filepath.Join(args[0], inversion.ConfigFile)); err != nil {
+				return inputError{fmt.Errorf("%s: not a run folder (no %s)", args[0], inversion.ConfigFile)}
+			}
+			return writeSummary(cmd.OutOrStdout(), args[0], asJSON)
+		},
+	}
+	c.Flags().BoolVar(&asJSON, "json", false, "print JSON instead of tables")
+	return c
+}
+
+// writeSummary summarises a run, saves summary.json in it and prints the tables (or JSON).
+func writeSummary(w io.Writer, dir string, asJSON bool) error {
+	s, err := inversion.Summarize(dir)
+	if err != nil {
+		return err
+	}
+	b, err := s.JSON()
+	if err != nil {
+		return err
+	}
+	if err := store.WriteFileAtomic(filepath.Join(dir, inversion.SummaryFile), b, 0o644); err != nil {
+		return fmt.Errorf("write summary: %w", err)
+	}
+	if asJSON {
+		_, err = w.Write(b)
+		return err
+	}
+	return s.WriteText(w)
+}
+
+func checkCmd() *cobra.Command {
+	return &cobra.Command{
+		Use:   "check CONFIG",
+		Short: "Validate a config and print its parameters and observations without sampling",
+		Args:  cobra.ExactArgs(1),
+		RunE: func(cmd *cobra.Command, args []string) error {
+			cfg, err := inversion.Load(args[0], nil)
+			if err != nil {
+				return err
+			}
+			p, err := inversion.Build(cfg, args[0])
+			if err != nil {
+				return err
+			}
+			w := cmd.OutOrStdout()
+			fmt.Fprintf(w, "%s: valid. Planet %q, %d layers, %d sampled parameters, %d observations.\n\n",
+				args[0], cfg.Planet.Name, len(cfg.Layers), p.Dim(), len(p.Observations))
+			tw := tabwriter.NewWriter(w, 2, 4, 2, ' ', 0)
+			fmt.Fprintln(tw, "parameter\tunit\tprior\tsupport")
+			for _, par := range p.Space.Params {
+				lo, hi := par.Prior.Support()
+				sup := fmt.Sprintf("[%.6g, %.6g]", lo*par.ToUnit, hi*par.ToUnit)
+				if par.Levels() > 0 {
+					sup = fmt.Sprintf("%d levels", par.Levels())
+				}
+				fmt.Fprintf(tw, "%s\t%s\t%s\t%s\n", par.Name, par.Unit, par.PriorString(), sup)
+			}
+			tw.Flush()
+			fmt.Fprintln(w)
+			tw = tabwriter.NewWriter(w, 2, 4, 2, ' ', 0)
+			fmt.Fprintln(tw, "observation\tunit\tvalue\tsigma")
+			for _, o := range p.Observations {
+				si := o.Observable.ToSI()
+				fmt.Fprintf(tw, "%s\t%s\t%.8g\t%.4g\n", o.Observable.Key, o.Observable.Unit, o.Value/si, o.Sigma/si)
+			}
+			tw.Flush()
+			s := cfg.Sampler
+			fmt.Fprintf(w, "\nsampler: %d chains × (%d warm-up + %d steps), thin %d → %d draws per chain; seed %d\n",
+				s.Chains, s.WarmupSteps, s.Steps, s.Thin, s.Steps/s.Thin, s.Seed)
+			return nil
+		},
+	}
+}
+
+// forwardResult is the JSON printed by plumb forward.
+type forwardResult struct {
+	RadiusKm          float64 `json:"radius_km"`
+	MassKg            float64 `json:"mass_kg"`
+	MeanDensityKgM3   float64 `json:"mean_density_kg_m3"`
+	SurfaceGravityMS2 float64 `json:"surface_gravity_m_s2"`
+	MoIFactor         float64 `json:"moi_factor"`
+	CentralPressurePa float64 `json:"central_pressure_pa"`
+	Layers            int     `json:"layers"`
+}
+
+func forwardCmd() *cobra.Command {
+	var model, profile string
+	var asJSON bool
+	var perLayer int
+	c := &cobra.Command{
+		Use:   "forward --model FILE.csv",
+		Short: "Evaluate one tabulated interior model",
+		Long: "forward reads a tabulated model (CSV with header radius_km,density_kg_m3,vp_km_s,vs_km_s and an\n" +
+			"optional viscosity_pa_s column; rows from the centre out; a discontinuity is two rows at one\n" +
+			"radius; vs = 0 marks a fluid) and prints its mass, mean density, surface gravity, moment of\n" +
+			"inertia factor and central pressure.",
+		Args: cobra.NoArgs,
+		RunE: func(cmd *cobra.Command, _ []string) error {
+			if model == "" {
+				return usageError{fmt.Errorf("forward: --model FILE.csv is required")}
+			}
+			m, err := modelfile.ReadCSVFile(model)
+			if err != nil {
+				return inputError{err}
+			}
+			st, err := forward.Solve(m)
+			if err != nil {
+				return inputError{fmt.Errorf("%s: %w", model, err)}
+			}
+			r := forwardResult{
+				RadiusKm: st.Radius() / 1e3, MassKg: st.Mass, MeanDensityKgM3: st.MeanDensity(),
+				SurfaceGravityMS2: st.SurfaceGravity(), MoIFactor: st.MoIFactor(),
+				CentralPressurePa: st.CentralPressure(), Layers: len(m.Layers),
+			}
+			if profile != "" {
+				if err := writeProfile(profile, st.Profile(perLayer)); err != nil {
+					return err
+				}
+			}
+			w := cmd.OutOrStdout()
+			if asJSON {
+				b, err := json.MarshalIndent(r, "", "  ")
+				if err != nil {
+					return err
+				}
+				_, err = fmt.Fprintf(w, "%s\n", b)
+				return err
+			}
+			tw := tabwriter.NewWriter(w, 2, 4, 2, ' ', 0)
+			fmt.Fprintf(tw, "radius\t%.6g km\n", r.RadiusKm)
+			fmt.Fprintf(tw, "mass\t%.6g kg\n", r.MassKg)
+			fmt.Fprintf(tw, "mean density\t%.6g kg/m3\n", r.MeanDensityKgM3)
+			fmt.Fprintf(tw, "surface gravity\t%.6g m/s2\n", r.SurfaceGravityMS2)
+			fmt.Fprintf(tw, "moment of inertia factor I/(MR²)\t%.6g\n", r.MoIFactor)
+			fmt.Fprintf(tw, "central pressure\t%.6g GPa\n", r.CentralPressurePa/1e9)
+			return tw.Flush()
+		},
+	}
+	f := c.Flags()
+	f.StringVar(&model, "model", "", "tabulated model file (CSV)")
+	f.BoolVar(&asJSON, "json", false, "print JSON")
+	f.StringVar(&profile, "profile", "", "also write the solved radius/density/vp/vs/g/P profile to this CSV file")
+	f.IntVar(&perLayer, "nodes-per-layer", 2, "profile nodes per layer (with --profile)")
+	return c
+}
+
+// writeProfile writes a profile CSV atomically, refusing to overwrite an existing file.
+func writeProfile(path string, p forward.Profile) error {
+	if _, err := os.Stat(path); err == nil {
+		return inputError{fmt.Errorf("%s: exists; not overwriting", path)}
+	}
+	var b bytes.Buffer
+	if err := modelfile.WriteProfileCSV(&b, p); err != nil {
+		return fmt.Errorf("write profile %s: %w", path, err)
+	}
+	if err := store.WriteFileAtomic(path, b.Bytes(), 0o644); err != nil {
+		return fmt.Errorf("write profile: %w", err)
+	}
+	return nil
+}

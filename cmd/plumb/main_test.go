@@ -1,0 +1,202 @@
+package main
+
+import (
+	"bytes"
+	"context"
+	"encoding/json"
+	"math"
+	"os"
+	"path/filepath"
+	"strings"
+	"testing"
+)
+
+func plumb(t *testing.T, args ...string) (code int, stdout, stderr string) {
+	t.Helper()
+	var o, e bytes.Buffer
+	code = run(context.Background(), args, &o, &e)
+	return code, o.String(), e.String()
+}
+
+func write(t *testing.T, dir, name, text string) string {
+	t.Helper()
+	p := filepath.Join(dir, name)
+	if err := os.WriteFile(p, []byte(text), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	return p
+}
+
+const smallConfig = `planet: {name: Testa, radius_km: 3000}
+layers:
+  - name: core
+    outer_radius_km: {prior: uniform, min: 500, max: 2500}
+    density_kg_m3: {prior: uniform, min: 5000, max: 11000}
+    vp_km_s: 5
+    state: liquid
+  - name: mantle
+    density_kg_m3: {prior: uniform, min: 3000, max: 4000}
+    vp_km_s: 8
+    vs_km_s: 4.5
+observations:
+  mass_kg: {value: 4.0e23, sigma: 4.0e20}
+  moi_factor: {value: 0.36, sigma: 0.004}
+sampler: {chains: 2, warmup_steps: 100, steps: 300, thin: 1, seed: 3}
+output: {checkpoint_every_steps: 100}
+`
+
+func TestCheckDemo(t *testing.T) {
+	code, out, errOut := plumb(t, "check", filepath.Join("..", "..", "runs", "demo", "config.yaml"))
+	if code != 0 {
+		t.Fatalf("exit %d: %s", code, errOut)
+	}
+	for _, w := range []string{"core_outer_radius_km", "uniform", "mass_kg", "moi_factor", "core_state"} {
+		if !strings.Contains(out, w) {
+			t.Errorf("check output lacks %q:\n%s", w, out)
+		}
+	}
+}
+
+func TestRunSummaryResume(t *testing.T) {
+	dir := t.TempDir()
+	cfg := write(t, dir, "c.yaml", smallConfig)
+	out := filepath.Join(dir, "out")
+	code, stdout, stderr := plumb(t, "run", cfg, "--out", out, "--workers", "2")
+	if code != 0 {
+		t.Fatalf("run: exit %d: %s", code, stderr)
+	}
+	if !strings.Contains(stdout, "core_outer_radius_km") {
+		t.Errorf("run did not print a summary:\n%s", stdout)
+	}
+	for _, f := range []string{"config.yaml", "checkpoint.json", "summary.json", "samples/part-00000.parquet"} {
+		if _, err := os.Stat(filepath.Join(out, f)); err != nil {
+			t.Errorf("run folder lacks %s", f)
+		}
+	}
+	code, stdout, _ = plumb(t, "summary", out, "--json")
+	if code != 0 {
+		t.Fatalf("summary: exit %d", code)
+	}
+	var s struct {
+		Draws      int `json:"draws"`
+		Parameters []struct {
+			Name string `json:"name"`
+		} `json:"parameters"`
+	}
+	if err := json.Unmarshal([]byte(stdout), &s); err != nil || s.Draws != 600 || len(s.Parameters) != 3 {
+		t.Errorf("summary JSON: %v %+v", err, s)
+	}
+	if code, _, _ := plumb(t, "resume", out); code != 0 {
+		t.Errorf("resume of a complete run: exit %d", code)
+	}
+	// Refuse to overwrite a non-empty run folder: exit 2, nothing lost.
+	before, _ := os.ReadFile(filepath.Join(out, "checkpoint.json"))
+	code, _, stderr = plumb(t, "run", cfg, "--out", out)
+	if code != 2 || !strings.Contains(stderr, "not empty") {
+		t.Errorf("run into a non-empty folder: exit %d, %q", code, stderr)
+	}
+	after, _ := os.ReadFile(filepath.Join(out, "checkpoint.json"))
+	if !bytes.Equal(before, after) {
+		t.Error("the refused run changed the existing checkpoint")
+	}
+}
+
+const tableCSV = `radius_km,density_kg_m3,vp_km_s,vs_km_s
+0,8000,6,0
+1000,8000,6,0
+1000,3500,8,4.5
+2000,3500,8,4.5
+`
+
+// plumb forward on a two-layer uniform table against the closed forms of a layered sphere
+// (M = 4π/3 Σ ρ_i (r_i³ − r_{i−1}³); Turcotte & Schubert, Geodynamics, self-gravitating sphere).
+func TestForwardJSON(t *testing.T) {
+	dir := t.TempDir()
+	m := write(t, dir, "m.csv", tableCSV)
+	prof := filepath.Join(dir, "profile.csv")
+	code, stdout, stderr := plumb(t, "forward", "--model", m, "--json", "--profile", prof)
+	if code != 0 {
+		t.Fatalf("exit %d: %s", code, stderr)
+	}
+	var r map[string]float64
+	if err := json.Unmarshal([]byte(stdout), &r); err != nil {
+		t.Fatal(err)
+	}
+	r1, r2 := 1e6, 2e6
+	mass := 4 * math.Pi / 3 * (8000*r1*r1*r1 + 3500*(r2*r2*r2-r1*r1*r1))
+	inertia := 8 * math.Pi / 15 * (8000*math.Pow(r1, 5) + 3500*(math.Pow(r2, 5)-math.Pow(r1, 5)))
+	for _, c := range []struct {
+		key  string
+		want float64
+	}{
+		{"mass_kg", mass},
+		{"mean_density_kg_m3", mass / (4 * math.Pi / 3 * r2 * r2 * r2)},
+		{"surface_gravity_m_s2", 6.67430e-11 * mass / (r2 * r2)},
+		{"moi_factor", inertia / (mass * r2 * r2)},
+	} {
+		if got, ok := r[c.key]; !ok || math.Abs(got-c.want) > 1e-12*math.Abs(c.want) {
+			t.Errorf("%s = %v, want %v", c.key, got, c.want)
+		}
+	}
+	if _, ok := r["central_pressure_pa"]; !ok {
+		t.Error("central_pressure_pa missing")
+	}
+	// The written profile reads back as a model with the same mass.
+	code, stdout2, _ := plumb(t, "forward", "--model", prof, "--json")
+	if code != 0 || stdout2 != stdout {
+		t.Errorf("profile round trip: exit %d\n%s\nvs\n%s", code, stdout2, stdout)
+	}
+}
+
+// Bad input: one line on stderr naming the file and the key, exit status 2, no panic.
+func TestBadInput(t *testing.T) {
+	dir := t.TempDir()
+	good := write(t, dir, "good.yaml", smallConfig)
+	cases := []struct {
+		name string
+		args []string
+		want []string
+	}{
+		{"missing config", []string{"check", filepath.Join(dir, "nope.yaml")}, []string{"nope.yaml", "no such file"}},
+		{"yaml syntax", []string{"check", write(t, dir, "syn.yaml", "planet:\n  name: [x\n")}, []string{"syn.yaml", "line"}},
+		{"unknown key", []string{"run", write(t, dir, "uk.yaml", strings.Replace(smallConfig, "vp_km_s: 8", "vp_km_s: 8\n    colour: red", 1))},
+			[]string{"uk.yaml", "layers[1]", "colour"}},
+		{"unknown prior", []string{"check", write(t, dir, "up.yaml", strings.Replace(smallConfig, "{prior: uniform, min: 3000, max: 4000}", "{prior: wide, min: 3000, max: 4000}", 1))},
+			[]string{"up.yaml", "layers[1].density_kg_m3.prior", "wide"}},
+		{"min ≥ max", []string{"check", write(t, dir, "mm.yaml", strings.Replace(smallConfig, "min: 3000, max: 4000", "min: 4000, max: 3000", 1))},
+			[]string{"mm.yaml", "layers[1].density_kg_m3", "min 4000 ≥ max 3000"}},
+		{"sigma ≤ 0", []string{"check", write(t, dir, "sg.yaml", strings.Replace(smallConfig, "sigma: 0.004", "sigma: 0", 1))},
+			[]string{"sg.yaml", "observations.moi_factor"}},
+		{"radii", []string{"check", write(t, dir, "rad.yaml", strings.Replace(smallConfig, "{prior: uniform, min: 500, max: 2500}", "3100", 1))},
+			[]string{"rad.yaml", "not increasing"}},
+		{"no sigma", []string{"check", write(t, dir, "ns.yaml", strings.Replace(smallConfig, "{value: 0.36, sigma: 0.004}", "{value: 0.36}", 1))},
+			[]string{"ns.yaml", "observations.moi_factor.sigma"}},
+		{"csv non-numeric", []string{"forward", "--model", write(t, dir, "nn.csv", strings.Replace(tableCSV, "3500,8,4.5\n2000", "3500,eight,4.5\n2000", 1))},
+			[]string{"nn.csv", "line 4", "vp_km_s"}},
+		{"csv decreasing radius", []string{"forward", "--model", write(t, dir, "dr.csv", strings.Replace(tableCSV, "2000,3500", "900,3500", 1))},
+			[]string{"dr.csv", "line 5", "radius"}},
+		{"csv missing", []string{"forward", "--model", filepath.Join(dir, "none.csv")}, []string{"none.csv"}},
+		{"no model flag", []string{"forward"}, []string{"--model"}},
+		{"unknown flag", []string{"run", good, "--sede", "3"}, []string{"sede"}},
+		{"missing argument", []string{"run"}, []string{"arg"}},
+		{"resume not a run", []string{"resume", dir}, []string{"not a run folder"}},
+		{"summary not a run", []string{"summary", dir}, []string{"not a run folder"}},
+	}
+	for _, tc := range cases {
+		t.Run(tc.name, func(t *testing.T) {
+			code, _, stderr := plumb(t, tc.args...)
+			if code != 2 {
+				t.Errorf("exit %d, want 2 (stderr %q)", code, stderr)
+			}
+			lines := strings.Split(strings.TrimRight(stderr, "\n"), "\n")
+			if len(lines) != 1 {
+				t.Errorf("stderr has %d lines: %q", len(lines), stderr)
+			}
+			for _, w := range tc.want {
+				if !strings.Contains(stderr, w) {
+					t.Errorf("stderr %q lacks %q", stderr, w)
+				}
+			}
+		})
+	}
+}

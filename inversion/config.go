@@ -1,0 +1,240 @@
+package inversion
+
+import (
+	"crypto/sha256"
+	"encoding/hex"
+	"encoding/json"
+	"errors"
+	"fmt"
+	"os"
+	"path/filepath"
+	"regexp"
+	"strings"
+
+	"github.com/spf13/viper"
+	"go.yaml.in/yaml/v3"
+)
+
+// Config is a run configuration as written by the user (YAML or TOML). Quantities that may be
+// fixed or carry a prior are decoded as raw values (any) and interpreted by Build, which knows the
+// key path of each and so can say exactly where a value is wrong.
+type Config struct {
+	// Planet holds the body's name and radius.
+	Planet PlanetConfig `mapstructure:"planet" json:"planet" yaml:"planet"`
+	// Layers are listed from the centre outward.
+	Layers []LayerConfig `mapstructure:"layers" json:"layers" yaml:"layers"`
+	// Constraints are optional structural constraints (a violated one makes the prior zero).
+	Constraints ConstraintConfig `mapstructure:"constraints" json:"constraints" yaml:"constraints"`
+	// Observations maps an observable key (unit in the name) to its measured value and 1σ.
+	Observations map[string]ObservationConfig `mapstructure:"observations" json:"observations" yaml:"observations"`
+	// Sampler sets the Markov chains.
+	Sampler SamplerConfig `mapstructure:"sampler" json:"sampler" yaml:"sampler"`
+	// Output sets the run folder and checkpointing.
+	Output OutputConfig `mapstructure:"output" json:"output" yaml:"output"`
+}
+
+// PlanetConfig describes the body as a whole.
+type PlanetConfig struct {
+	// Name is free text, for reports.
+	Name string `mapstructure:"name" json:"name" yaml:"name"`
+	// RadiusKm is a number (fixed) or a prior mapping.
+	RadiusKm any `mapstructure:"radius_km" json:"radius_km" yaml:"radius_km"`
+}
+
+// LayerConfig is one shell. Each property is a number, a prior mapping ({prior: uniform, min:, max:}),
+// or for density_kg_m3, vp_km_s and vs_km_s a linear gradient {inner: …, outer: …} whose two ends
+// are each a number or a prior mapping.
+type LayerConfig struct {
+	// Name is unique and column-safe (letters, digits, underscore); it prefixes parameter names.
+	Name string `mapstructure:"name" json:"name" yaml:"name"`
+	// OuterRadiusKm places the layer's top; ThicknessKm gives its thickness below the layer
+	// above's bottom (or the surface). Exactly one per layer, except that the outermost layer may
+	// give neither (it extends to the surface).
+	OuterRadiusKm any `mapstructure:"outer_radius_km" json:"outer_radius_km,omitempty" yaml:"outer_radius_km,omitempty"`
+	ThicknessKm   any `mapstructure:"thickness_km" json:"thickness_km,omitempty" yaml:"thickness_km,omitempty"`
+	DensityKgM3   any `mapstructure:"density_kg_m3" json:"density_kg_m3" yaml:"density_kg_m3"`
+	VpKmS         any `mapstructure:"vp_km_s" json:"vp_km_s" yaml:"vp_km_s"`
+	VsKmS         any `mapstructure:"vs_km_s" json:"vs_km_s" yaml:"vs_km_s"`
+	// State is "liquid", "solid" (default) or a categorical prior over them.
+	State any `mapstructure:"state" json:"state,omitempty" yaml:"state,omitempty"`
+	// ViscosityPaS is recorded with the layer for rheology-aware observables.
+	ViscosityPaS any `mapstructure:"viscosity_pa_s" json:"viscosity_pa_s,omitempty" yaml:"viscosity_pa_s,omitempty"`
+}
+
+// ConstraintConfig holds optional structural constraints.
+type ConstraintConfig struct {
+	// DensityIncreasesWithDepth rejects models whose density decreases anywhere with depth.
+	DensityIncreasesWithDepth bool `mapstructure:"density_increases_with_depth" json:"density_increases_with_depth" yaml:"density_increases_with_depth"`
+}
+
+// ObservationConfig is one measured value with its 1σ uncertainty, in the unit of its key.
+type ObservationConfig struct {
+	// Value is the measured value.
+	Value any `mapstructure:"value" json:"value" yaml:"value"`
+	// Sigma is the 1σ uncertainty (> 0).
+	Sigma any `mapstructure:"sigma" json:"sigma" yaml:"sigma"`
+}
+
+// SamplerConfig sets the chains.
+type SamplerConfig struct {
+	// Chains is the number of independent chains.
+	Chains int `mapstructure:"chains" json:"chains" yaml:"chains"`
+	// WarmupSteps are adaptation sweeps per chain, not written.
+	WarmupSteps int64 `mapstructure:"warmup_steps" json:"warmup_steps" yaml:"warmup_steps"`
+	// Steps are the sweeps per chain after warm-up.
+	Steps int64 `mapstructure:"steps" json:"steps" yaml:"steps"`
+	// Thin keeps every Thin-th sweep as a draw.
+	Thin int64 `mapstructure:"thin" json:"thin" yaml:"thin"`
+	// Seed seeds every chain's generator (through a hash of seed and chain index).
+	Seed uint64 `mapstructure:"seed" json:"seed" yaml:"seed"`
+	// Workers is the number of goroutines running chains (0: one per core). It does not change
+	// the output.
+	Workers int `mapstructure:"workers" json:"workers" yaml:"workers"`
+}
+
+// OutputConfig sets the run folder.
+type OutputConfig struct {
+	// Dir is the run folder, relative to the config file's folder unless absolute.
+	Dir string `mapstructure:"dir" json:"dir" yaml:"dir"`
+	// CheckpointEverySteps is the number of sweeps between checkpoints (and Parquet parts).
+	CheckpointEverySteps int64 `mapstructure:"checkpoint_every_steps" json:"checkpoint_every_steps" yaml:"checkpoint_every_steps"`
+	// LogEverySeconds is the interval of progress lines when not on a terminal.
+	LogEverySeconds float64 `mapstructure:"log_every_s" json:"log_every_s" yaml:"log_every_s"`
+}
+
+// ConfigError is an input error: it names the file and the key. The CLI exits with status 2.
+type ConfigError struct {
+	// File is the config (or model) file.
+	File string
+	// Key is the key path, e.g. "layers[1].density_kg_m3" (may be empty).
+	Key string
+	// Msg says what is wrong.
+	Msg string
+}
+
+func (e *ConfigError) Error() string {
+	if e.Key == "" {
+		return fmt.Sprintf("%s: %s", e.File, e.Msg)
+	}
+	return fmt.Sprintf("%s: %s: %s", e.File, e.Key, e.Msg)
+}
+
+// defaults are the sampler and output settings a config may omit. Declaring them also lets
+// PLUMB_-prefixed environment variables override these keys (viper only sees known keys).
+var defaultSettings = map[string]any{
+	"sampler.chains":                4,
+	"sampler.warmup_steps":          2000,
+	"sampler.steps":                 10000,
+	"sampler.thin":                  1,
+	"sampler.seed":                  1,
+	"sampler.workers":               0,
+	"output.dir":                    "run",
+	"output.checkpoint_every_steps": 1000,
+	"output.log_every_s":            10.0,
+}
+
+// Load reads a config file (YAML, or TOML by extension) strictly: an unknown key is an error.
+// Environment variables PLUMB_SECTION_KEY (e.g. PLUMB_SAMPLER_SEED) override the sampler and
+// output keys; overrides (key path → value, e.g. from command-line flags) override everything.
+func Load(path string, overrides map[string]any) (*Config, error) {
+	v := viper.New()
+	for k, d := range defaultSettings {
+		v.SetDefault(k, d)
+	}
+	v.SetEnvPrefix("PLUMB")
+	v.SetEnvKeyReplacer(strings.NewReplacer(".", "_"))
+	v.AutomaticEnv()
+	switch strings.ToLower(filepath.Ext(path)) {
+	case ".yaml", ".yml":
+		v.SetConfigType("yaml")
+	case ".toml":
+		v.SetConfigType("toml")
+	default:
+		return nil, &ConfigError{File: path, Msg: "unknown config format (want .yaml, .yml or .toml)"}
+	}
+	f, err := os.Open(path)
+	if err != nil {
+		return nil, &ConfigError{File: path, Msg: describeOpenError(err)}
+	}
+	defer f.Close()
+	if err := v.ReadConfig(f); err != nil {
+		return nil, &ConfigError{File: path, Msg: oneLine(strings.TrimPrefix(err.Error(), "While parsing config: "))}
+	}
+	for k, o := range overrides {
+		v.Set(k, o)
+	}
+	var c Config
+	if err := v.UnmarshalExact(&c); err != nil {
+		return nil, decodeError(path, err)
+	}
+	return &c, nil
+}
+
+func describeOpenError(err error) string {
+	switch {
+	case errors.Is(err, os.ErrNotExist):
+		return "no such file"
+	case errors.Is(err, os.ErrPermission):
+		return "permission denied"
+	}
+	return oneLine(err.Error())
+}
+
+var (
+	invalidKeys = regexp.MustCompile(`'([^']*)' has invalid keys: (.*)`)
+	fieldErr    = regexp.MustCompile(`^'([^']*)' (.*)$`)
+)
+
+// decodeError turns a mapstructure error into a one-line ConfigError naming the key.
+func decodeError(file string, err error) error {
+	msg := strings.TrimPrefix(err.Error(), "decoding failed due to the following error(s):")
+	var lines []string
+	for _, l := range strings.Split(msg, "\n") {
+		if l = strings.TrimSpace(l); l != "" {
+			lines = append(lines, l)
+		}
+	}
+	if len(lines) == 0 {
+		return &ConfigError{File: file, Msg: oneLine(err.Error())}
+	}
+	// Report the first problem; one clear line beats a list.
+	l := lines[0]
+	if m := invalidKeys.FindStringSubmatch(l); m != nil {
+		keys := strings.Split(m[2], ", ")
+		word := "unknown key"
+		if len(keys) > 1 {
+			word = "unknown keys"
+		}
+		return &ConfigError{File: file, Key: m[1], Msg: fmt.Sprintf("%s %q", word, strings.Join(keys, ", "))}
+	}
+	if m := fieldErr.FindStringSubmatch(l); m != nil {
+		return &ConfigError{File: file, Key: m[1], Msg: m[2]}
+	}
+	return &ConfigError{File: file, Msg: l}
+}
+
+func oneLine(s string) string { return strings.Join(strings.Fields(s), " ") }
+
+// Hash is the SHA-256 of the config's canonical JSON form, leaving out what cannot change the
+// draws (worker count, output folder, log interval, checkpoint interval). A resumed run must have
+// the same hash.
+func (c *Config) Hash() string {
+	h := *c
+	h.Sampler.Workers = 0
+	h.Output = OutputConfig{}
+	b, err := json.Marshal(h)
+	if err != nil { // values come from YAML/TOML decoding: always marshallable
+		panic(fmt.Sprintf("inversion: config hash: %v", err))
+	}
+	s := sha256.Sum256(b)
+	return hex.EncodeToString(s[:])
+}
+
+// YAML renders the resolved config (after environment and flag overrides) for the run folder.
+func (c *Config) YAML() ([]byte, error) {
+	b, err := yaml.Marshal(c)
+	if err != nil {
+		return nil, fmt.Errorf("render config: %w", err)
+	}
+	return b, nil
+}

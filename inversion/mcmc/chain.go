@@ -1,0 +1,504 @@
+// Package mcmc is plumb's generic Markov chain Monte Carlo core. It samples any log density over a
+// vector whose coordinates are either continuous or discrete (categorical levels 0..K−1) and knows
+// nothing of planets: the same code samples a Gaussian in a test and an interior model in a run.
+//
+// A chain is a value with one serialisable State (position, log density, recorded derived values,
+// random-generator state, adaptation state and counters), so a run can be checkpointed at any step
+// and resumed bit for bit.
+package mcmc
+
+import (
+	"crypto/sha256"
+	"encoding/binary"
+	"errors"
+	"fmt"
+	"math"
+	"math/rand/v2"
+)
+
+// Target is a log density known up to a constant.
+type Target interface {
+	// Dim is the number of coordinates.
+	Dim() int
+	// Levels gives, per coordinate, the number of discrete levels (values 0..n−1), or 0 for a
+	// continuous coordinate.
+	Levels() []int
+	// NumDerived is the number of derived values the target computes with each point (for example
+	// the log prior, the log likelihood and predicted observables), recorded with every draw.
+	NumDerived() int
+	// LogDensity returns log p(x) up to a constant and fills derived (length NumDerived).
+	// −Inf (or NaN, treated alike) marks a point outside the support: it is rejected and counted.
+	LogDensity(x, derived []float64) float64
+}
+
+// Config sets the length and starting point of a chain.
+type Config struct {
+	// Warmup is the number of adaptation sweeps; their draws are not emitted.
+	Warmup int64
+	// Steps is the number of sweeps after warm-up.
+	Steps int64
+	// Thin keeps every Thin-th post-warm-up sweep as a draw (1 keeps all).
+	Thin int64
+	// InitialScale is the initial proposal standard deviation of each coordinate (ignored for
+	// discrete coordinates), in the coordinate's working scale: for a Log coordinate it is a
+	// standard deviation of log x. Zero or missing entries default to 1.
+	InitialScale []float64
+	// Log marks positive coordinates that are proposed on a logarithmic scale (a multiplicative
+	// random walk, Dellaportas & Roberts 2003), with the Hastings correction y/x. Products such as
+	// density × radius³ that the data constrain become linear there, which turns curved ridges of
+	// the posterior into nearly straight ones that the adapted covariance can follow.
+	Log []bool
+	// Init draws a starting point (for example from the prior). Points with −Inf log density
+	// are redrawn up to MaxInitTries times.
+	Init func(r *rand.Rand, x []float64)
+	// MaxInitTries bounds the search for a valid starting point (default 10000).
+	MaxInitTries int
+}
+
+// Validate reports a configuration that cannot run.
+func (c Config) Validate() error {
+	switch {
+	case c.Warmup < 0:
+		return fmt.Errorf("warm-up steps %d < 0", c.Warmup)
+	case c.Steps < 1:
+		return fmt.Errorf("steps %d < 1", c.Steps)
+	case c.Thin < 1:
+		return fmt.Errorf("thin %d < 1", c.Thin)
+	case c.Init == nil:
+		return errors.New("no initial-point function")
+	}
+	return nil
+}
+
+// Kept is the number of draws a chain emits in total.
+func (c Config) Kept() int64 { return c.Steps / c.Thin }
+
+// Total is the number of sweeps a chain runs in total.
+func (c Config) Total() int64 { return c.Warmup + c.Steps }
+
+// Adaptation constants. The continuous block uses the adaptive Metropolis proposal of Haario,
+// Saksman & Tamminen (2001), N(x, s·(2.38²/d)·(C + εD)), with C the running covariance of the chain,
+// D the diagonal of the initial scales squared (so ε is relative to each coordinate's own scale:
+// plumb's coordinates differ by many orders of magnitude in SI units) and s a global scale tuned by a
+// Robbins–Monro recursion towards acceptance rate 0.234 (Andrieu & Thoms 2008, "global adaptive
+// scaling"). The running moments are restarted at 1/4 and 1/2 of warm-up so that the far-from-mode
+// start does not pollute them (windowed adaptation: common practice, no source). Everything adapts
+// only during warm-up and is frozen afterwards, so the post-warm-up chain is a homogeneous Markov
+// chain with the posterior as its invariant distribution.
+const (
+	targetAccept   = 0.234
+	covEpsilon     = 1e-8
+	cholEvery      = 50
+	robbinsMonroEx = 0.6
+)
+
+// AdaptState is the adaptation state of the continuous block.
+type AdaptState struct {
+	// N is the number of sweeps in the running moments.
+	N int64 `json:"n"`
+	// Mean and Cov (row-major, d×d over the continuous coordinates) are the running moments.
+	Mean []float64 `json:"mean"`
+	Cov  []float64 `json:"cov"`
+	// LogScale is the log of the global proposal scale s.
+	LogScale float64 `json:"log_scale"`
+	// Chol is the lower Cholesky factor (row-major) of the current proposal covariance, without s.
+	Chol []float64 `json:"chol"`
+}
+
+// Counters count moves. Index 0 is warm-up, 1 is sampling.
+type Counters struct {
+	// Proposed and Accepted count continuous-block moves.
+	Proposed [2]int64 `json:"proposed"`
+	Accepted [2]int64 `json:"accepted"`
+	// DiscreteProposed and DiscreteAccepted count moves of discrete coordinates.
+	DiscreteProposed [2]int64 `json:"discrete_proposed"`
+	DiscreteAccepted [2]int64 `json:"discrete_accepted"`
+	// Invalid counts proposals whose log density was −Inf or NaN (for example a non-physical
+	// model), all moves together.
+	Invalid [2]int64 `json:"invalid"`
+}
+
+// State is everything a chain needs to continue exactly where it stopped.
+type State struct {
+	// Chain is the chain index.
+	Chain int `json:"chain"`
+	// Iter is the number of completed sweeps (warm-up included).
+	Iter int64 `json:"iter"`
+	// Draws is the number of emitted draws.
+	Draws int64 `json:"draws"`
+	// X, LogDensity and Derived describe the current point.
+	X          []float64 `json:"x"`
+	LogDensity float64   `json:"log_density"`
+	Derived    []float64 `json:"derived"`
+	// RNG is the marshalled PCG state.
+	RNG []byte `json:"rng"`
+	// Adapt is the proposal adaptation state.
+	Adapt AdaptState `json:"adapt"`
+	// Counts are the move counters.
+	Counts Counters `json:"counts"`
+}
+
+// Chain is one Markov chain.
+type Chain struct {
+	t    Target
+	cfg  Config
+	pcg  *rand.PCG
+	rng  *rand.Rand
+	st   State
+	cont []int  // indices of continuous coordinates
+	logc []bool // per continuous coordinate: proposed on a log scale
+	disc []int  // indices of discrete coordinates
+	lev  []int
+	d0   []float64 // initial proposal variances of the continuous block
+
+	// scratch
+	y, dy, z []float64
+	yDer     []float64
+	delta    []float64
+}
+
+// Seeds derives the two PCG seed words of chain c from the run seed. Go's PCG has a fixed
+// increment, so NewPCG(seed, c) would give chains offsets in one stream; hashing (seed, c) gives
+// unrelated streams.
+func Seeds(seed uint64, c int) (uint64, uint64) {
+	var b [8 + 8 + 16]byte
+	copy(b[:16], "plumb/chain-seed")
+	binary.LittleEndian.PutUint64(b[16:], seed)
+	binary.LittleEndian.PutUint64(b[24:], uint64(c))
+	h := sha256.Sum256(b[:])
+	return binary.LittleEndian.Uint64(h[:8]), binary.LittleEndian.Uint64(h[8:16])
+}
+
+// NewChain starts chain c of a run with the given seed at a valid point drawn by cfg.Init.
+func NewChain(t Target, cfg Config, seed uint64, c int) (*Chain, error) {
+	if err := cfg.Validate(); err != nil {
+		return nil, err
+	}
+	s1, s2 := Seeds(seed, c)
+	ch := newChain(t, cfg, rand.NewPCG(s1, s2))
+	ch.st.Chain = c
+	tries := cfg.MaxInitTries
+	if tries <= 0 {
+		tries = 10000
+	}
+	x := make([]float64, t.Dim())
+	der := make([]float64, t.NumDerived())
+	for i := 0; ; i++ {
+		if i == tries {
+			return nil, fmt.Errorf("chain %d: no valid starting point in %d draws from the initial distribution", c, tries)
+		}
+		cfg.Init(ch.rng, x)
+		lp := t.LogDensity(x, der)
+		if !math.IsNaN(lp) && !math.IsInf(lp, -1) && !math.IsInf(lp, 1) {
+			ch.st.X, ch.st.Derived, ch.st.LogDensity = x, der, lp
+			break
+		}
+	}
+	ch.resetMoments()
+	ch.setInitialProposal()
+	return ch, nil
+}
+
+// Restore rebuilds a chain from a saved State; the target and config must be the ones it ran with.
+func Restore(t Target, cfg Config, st State) (*Chain, error) {
+	if err := cfg.Validate(); err != nil {
+		return nil, err
+	}
+	pcg := &rand.PCG{}
+	if err := pcg.UnmarshalBinary(st.RNG); err != nil {
+		return nil, fmt.Errorf("chain %d: random-generator state: %w", st.Chain, err)
+	}
+	ch := newChain(t, cfg, pcg)
+	dc := len(ch.cont)
+	switch {
+	case len(st.X) != t.Dim():
+		return nil, fmt.Errorf("chain %d: state has %d coordinates, target %d", st.Chain, len(st.X), t.Dim())
+	case len(st.Derived) != t.NumDerived():
+		return nil, fmt.Errorf("chain %d: state has %d derived values, target %d", st.Chain, len(st.Derived), t.NumDerived())
+	case len(st.Adapt.Mean) != dc || len(st.Adapt.Cov) != dc*dc || len(st.Adapt.Chol) != dc*dc:
+		return nil, fmt.Errorf("chain %d: adaptation state does not match %d continuous coordinates", st.Chain, dc)
+	}
+	ch.st = cloneState(st)
+	ch.st.RNG = nil
+	return ch, nil
+}
+
+func newChain(t Target, cfg Config, pcg *rand.PCG) *Chain {
+	lev := append([]int(nil), t.Levels()...)
+	ch := &Chain{t: t, cfg: cfg, pcg: pcg, rng: rand.New(pcg), lev: lev}
+	for i, l := range lev {
+		if l > 0 {
+			ch.disc = append(ch.disc, i)
+		} else {
+			ch.cont = append(ch.cont, i)
+		}
+	}
+	dc := len(ch.cont)
+	ch.d0 = make([]float64, dc)
+	ch.logc = make([]bool, dc)
+	for k, i := range ch.cont {
+		ch.logc[k] = i < len(cfg.Log) && cfg.Log[i]
+		s := 1.0
+		if i < len(cfg.InitialScale) && cfg.InitialScale[i] > 0 && !math.IsInf(cfg.InitialScale[i], 0) {
+			s = cfg.InitialScale[i]
+		}
+		ch.d0[k] = s * s
+	}
+	ch.y = make([]float64, t.Dim())
+	ch.z = make([]float64, dc)
+	ch.dy = make([]float64, dc)
+	ch.delta = make([]float64, dc)
+	ch.yDer = make([]float64, t.NumDerived())
+	return ch
+}
+
+func (ch *Chain) resetMoments() {
+	dc := len(ch.cont)
+	a := &ch.st.Adapt
+	a.N = 0
+	a.Mean = make([]float64, dc)
+	a.Cov = make([]float64, dc*dc)
+}
+
+// setInitialProposal sets the proposal to diag(initial scales²)·(2.38²/d)... without the 2.38²/d
+// factor: before any moments exist the user's scales are taken as they are.
+func (ch *Chain) setInitialProposal() {
+	dc := len(ch.cont)
+	a := &ch.st.Adapt
+	a.Chol = make([]float64, dc*dc)
+	for k := range dc {
+		a.Chol[k*dc+k] = math.Sqrt(ch.d0[k])
+	}
+	a.LogScale = 0
+}
+
+// State returns a deep copy of the chain's state, including the generator state.
+func (ch *Chain) State() State {
+	s := cloneState(ch.st)
+	b, err := ch.pcg.MarshalBinary()
+	if err != nil { // PCG.MarshalBinary cannot fail; keep the contract explicit.
+		panic(fmt.Sprintf("mcmc: marshal PCG: %v", err))
+	}
+	s.RNG = b
+	return s
+}
+
+func cloneState(s State) State {
+	c := s
+	c.X = append([]float64(nil), s.X...)
+	c.Derived = append([]float64(nil), s.Derived...)
+	c.RNG = append([]byte(nil), s.RNG...)
+	c.Adapt.Mean = append([]float64(nil), s.Adapt.Mean...)
+	c.Adapt.Cov = append([]float64(nil), s.Adapt.Cov...)
+	c.Adapt.Chol = append([]float64(nil), s.Adapt.Chol...)
+	return c
+}
+
+// Iter is the number of completed sweeps.
+func (ch *Chain) Iter() int64 { return ch.st.Iter }
+
+// Done reports whether the chain has run all its sweeps.
+func (ch *Chain) Done() bool { return ch.st.Iter >= ch.cfg.Total() }
+
+// Counts returns the move counters.
+func (ch *Chain) Counts() Counters { return ch.st.Counts }
+
+// Emit receives a kept draw. The slices are only valid during the call.
+type Emit func(draw int64, x, derived []float64, logDensity float64)
+
+// Advance runs sweeps until the chain has completed until sweeps (or all of them), or stop returns
+// true (checked before every sweep; nil means never). Kept draws go to emit. It returns the number
+// of sweeps run.
+func (ch *Chain) Advance(until int64, stop func() bool, emit Emit) int64 {
+	if until > ch.cfg.Total() {
+		until = ch.cfg.Total()
+	}
+	var n int64
+	for ch.st.Iter < until {
+		if stop != nil && stop() {
+			break
+		}
+		ch.sweep()
+		n++
+		post := ch.st.Iter - ch.cfg.Warmup
+		if post > 0 && post%ch.cfg.Thin == 0 {
+			if emit != nil {
+				emit(ch.st.Draws, ch.st.X, ch.st.Derived, ch.st.LogDensity)
+			}
+			ch.st.Draws++
+		}
+	}
+	return n
+}
+
+// sweep is one iteration: a block move of the continuous coordinates, then one move per discrete
+// coordinate, then (during warm-up) adaptation.
+func (ch *Chain) sweep() {
+	phase := 1
+	warm := ch.st.Iter < ch.cfg.Warmup
+	if warm {
+		phase = 0
+	}
+	c := &ch.st.Counts
+	if dc := len(ch.cont); dc > 0 {
+		a := &ch.st.Adapt
+		s := math.Exp(a.LogScale)
+		for k := range ch.z {
+			ch.z[k] = ch.rng.NormFloat64()
+		}
+		copy(ch.y, ch.st.X)
+		logq := 0.0 // log Hastings ratio q(x|y)/q(y|x): Σ log(y/x) over log coordinates
+		for k := range dc {
+			row := a.Chol[k*dc : k*dc+k+1]
+			v := 0.0
+			for j, l := range row {
+				v += l * ch.z[j]
+			}
+			i := ch.cont[k]
+			if ch.logc[k] {
+				ch.y[i] *= math.Exp(s * v)
+				logq += s * v
+			} else {
+				ch.y[i] += s * v
+			}
+		}
+		acc := ch.metropolis(phase, logq)
+		c.Proposed[phase]++
+		if acc {
+			c.Accepted[phase]++
+		}
+		if warm {
+			// Robbins–Monro on log s; the gain decays so adaptation settles within warm-up.
+			gain := math.Pow(float64(ch.st.Iter+1), -robbinsMonroEx)
+			r := 0.0
+			if acc {
+				r = 1
+			}
+			a.LogScale += gain * (r - targetAccept)
+		}
+	}
+	for _, i := range ch.disc {
+		k := ch.lev[i]
+		if k < 2 {
+			continue
+		}
+		// Uniform over all K levels, the current one included: symmetric, and aperiodic even when
+		// the levels are equally probable (proposing only the other levels would make a two-level
+		// chain with a flat density alternate deterministically, so that an even thinning would
+		// see one level only). Staying put costs no density evaluation.
+		nl := ch.rng.IntN(k)
+		c.DiscreteProposed[phase]++
+		if nl == int(ch.st.X[i]) {
+			c.DiscreteAccepted[phase]++
+			continue
+		}
+		copy(ch.y, ch.st.X)
+		ch.y[i] = float64(nl)
+		if ch.metropolis(phase, 0) {
+			c.DiscreteAccepted[phase]++
+		}
+	}
+	ch.st.Iter++
+	if warm {
+		ch.adapt()
+	}
+}
+
+// metropolis evaluates the proposal in ch.y and accepts it with probability
+// min(1, p(y)/p(x)·exp(logq)), logq being the log Hastings ratio of the proposal.
+func (ch *Chain) metropolis(phase int, logq float64) bool {
+	lp := ch.t.LogDensity(ch.y, ch.yDer)
+	u := ch.rng.Float64()
+	if math.IsNaN(lp) || math.IsInf(lp, 0) {
+		// +Inf is as unusable as NaN: a density cannot be infinite at a sampled point.
+		ch.st.Counts.Invalid[phase]++
+		return false
+	}
+	if math.Log(u) < lp-ch.st.LogDensity+logq {
+		copy(ch.st.X, ch.y)
+		ch.st.Derived, ch.yDer = ch.yDer, ch.st.Derived
+		ch.st.LogDensity = lp
+		return true
+	}
+	return false
+}
+
+// adapt updates the running moments with the current point, restarts them at the window
+// boundaries and refreshes the proposal's Cholesky factor every cholEvery sweeps.
+func (ch *Chain) adapt() {
+	dc := len(ch.cont)
+	if dc == 0 {
+		return
+	}
+	it, w := ch.st.Iter, ch.cfg.Warmup
+	if it == w/4 || it == w/2 {
+		ch.resetMoments()
+	}
+	a := &ch.st.Adapt
+	a.N++
+	n := float64(a.N)
+	for k, i := range ch.cont {
+		w := ch.st.X[i]
+		if ch.logc[k] {
+			w = math.Log(w)
+		}
+		ch.delta[k] = w - a.Mean[k]
+		a.Mean[k] += ch.delta[k] / n
+	}
+	// Welford: Cov holds the running covariance (divisor n).
+	for r := range dc {
+		for c := range dc {
+			idx := r*dc + c
+			a.Cov[idx] += ((n-1)/n*ch.delta[r]*ch.delta[c] - a.Cov[idx]) / n
+		}
+	}
+	if it%cholEvery == 0 && a.N > int64(2*dc+10) {
+		ch.refreshChol()
+	}
+}
+
+// refreshChol sets Chol to the factor of (2.38²/d)(C + εD); it keeps the old factor when the
+// matrix is not positive definite (which a finite sample covariance plus εD always is, barring
+// round-off).
+func (ch *Chain) refreshChol() {
+	dc := len(ch.cont)
+	a := &ch.st.Adapt
+	sd := 2.38 * 2.38 / float64(dc)
+	m := make([]float64, dc*dc)
+	for r := range dc {
+		for c := range dc {
+			m[r*dc+c] = sd * a.Cov[r*dc+c]
+		}
+		m[r*dc+r] += sd * covEpsilon * ch.d0[r]
+	}
+	if cholesky(m, dc) {
+		a.Chol = m
+	}
+}
+
+// cholesky factors the symmetric matrix m (row-major n×n) in place into its lower factor,
+// zeroing the upper triangle; false if m is not positive definite.
+func cholesky(m []float64, n int) bool {
+	for j := range n {
+		s := m[j*n+j]
+		for k := range j {
+			s -= m[j*n+k] * m[j*n+k]
+		}
+		if !(s > 0) {
+			return false
+		}
+		d := math.Sqrt(s)
+		m[j*n+j] = d
+		for i := j + 1; i < n; i++ {
+			v := m[i*n+j]
+			for k := range j {
+				v -= m[i*n+k] * m[j*n+k]
+			}
+			m[i*n+j] = v / d
+		}
+		for k := j + 1; k < n; k++ {
+			m[j*n+k] = 0
+		}
+	}
+	return true
+}

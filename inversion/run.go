@@ -1,0 +1,463 @@
+package inversion
+
+import (
+	"context"
+	"encoding/json"
+	"errors"
+	"fmt"
+	"io"
+	"log/slog"
+	"math/rand/v2"
+	"os"
+	"path/filepath"
+	"runtime"
+	"slices"
+	"strconv"
+	"sync"
+	"sync/atomic"
+	"time"
+
+	"plumb/inversion/mcmc"
+	"plumb/inversion/store"
+)
+
+// Version is plumb's version, recorded in every output file.
+const Version = "0.1.0"
+
+// SchemaVersion numbers the layout of the run folder and of the Parquet tables.
+const SchemaVersion = 1
+
+// Caution travels with every result: it is written into the Parquet metadata and the summary.
+const Caution = "A posterior is conditional on the priors and on the model family (number and kind of layers, " +
+	"equations of state, observables used); change them and it changes. plumb is a planetary-structure " +
+	"research tool, not a hazard-assessment tool."
+
+// Files of a run folder.
+const (
+	ConfigFile     = "config.yaml"
+	CheckpointFile = "checkpoint.json"
+	SamplesDir     = "samples"
+	SummaryFile    = "summary.json"
+)
+
+// Checkpoint is the state of a run that survives a crash: written atomically, only after the
+// Parquet parts it lists are complete.
+type Checkpoint struct {
+	// SchemaVersion, PlumbVersion and GoVersion record what wrote it; math/rand/v2 streams are not
+	// promised across Go releases, so a resume under another Go version is warned about.
+	SchemaVersion int    `json:"schema_version"`
+	PlumbVersion  string `json:"plumb_version"`
+	GoVersion     string `json:"go_version"`
+	// ConfigSHA256 is Config.Hash of the run's config; a resume with another config is refused.
+	ConfigSHA256 string `json:"config_sha256"`
+	// Seed is the run seed.
+	Seed uint64 `json:"seed"`
+	// Parts lists the complete sample parts (file names in samples/), in order.
+	Parts []string `json:"parts"`
+	// NextPart is the index of the next part file.
+	NextPart int `json:"next_part"`
+	// Chains holds every chain's full state.
+	Chains []mcmc.State `json:"chains"`
+	// Complete is true once every chain has run all its sweeps.
+	Complete bool `json:"complete"`
+}
+
+// Options control how a run executes; none of them changes the draws.
+type Options struct {
+	// Workers is the number of goroutines running chains; 0 takes the config's value (whose 0
+	// means one per core).
+	Workers int
+	// Log receives progress and events (nil: discard).
+	Log *slog.Logger
+	// Live, when non-nil, gets a live progress line (for a terminal) instead of periodic log lines.
+	Live io.Writer
+}
+
+// ErrInterrupted is returned when a run stopped on a signal after writing its checkpoint.
+var ErrInterrupted = errors.New("run interrupted; checkpoint written")
+
+// ErrRunDirNotEmpty is returned when a new run would overwrite an existing one.
+var ErrRunDirNotEmpty = errors.New("run folder exists and is not empty")
+
+// Start begins a new run of cfg (read from cfgFile) in dir, which must not exist or be empty.
+func Start(ctx context.Context, cfg *Config, cfgFile, dir string, opt Options) error {
+	if _, err := Build(cfg, cfgFile); err != nil {
+		return err
+	}
+	if ents, err := os.ReadDir(dir); err == nil && len(ents) > 0 {
+		return fmt.Errorf("%s: %w (choose another with --out, or remove it)", dir, ErrRunDirNotEmpty)
+	} else if err != nil && !errors.Is(err, os.ErrNotExist) {
+		return fmt.Errorf("run folder %s: %w", dir, err)
+	}
+	if err := os.MkdirAll(filepath.Join(dir, SamplesDir), 0o755); err != nil {
+		return fmt.Errorf("create run folder: %w", err)
+	}
+	y, err := cfg.YAML()
+	if err != nil {
+		return err
+	}
+	head := "# Resolved configuration of this run (after environment and flag overrides).\n" +
+		"# plumb resume refuses to continue if it is changed.\n"
+	if err := store.WriteFileAtomic(filepath.Join(dir, ConfigFile), append([]byte(head), y...), 0o644); err != nil {
+		return fmt.Errorf("write resolved config: %w", err)
+	}
+	return execute(ctx, dir, opt)
+}
+
+// Resume continues the run in dir exactly where its checkpoint left it.
+func Resume(ctx context.Context, dir string, opt Options) error {
+	return execute(ctx, dir, opt)
+}
+
+// LoadRun reads a run folder's config and problem.
+func LoadRun(dir string) (*Config, *Problem, error) {
+	path := filepath.Join(dir, ConfigFile)
+	cfg, err := Load(path, nil)
+	if err != nil {
+		return nil, nil, err
+	}
+	p, err := Build(cfg, path)
+	if err != nil {
+		return nil, nil, err
+	}
+	return cfg, p, nil
+}
+
+// ReadCheckpoint reads a run's checkpoint; it returns (nil, nil) if there is none yet.
+func ReadCheckpoint(dir string) (*Checkpoint, error) {
+	path := filepath.Join(dir, CheckpointFile)
+	b, err := os.ReadFile(path)
+	if errors.Is(err, os.ErrNotExist) {
+		return nil, nil
+	}
+	if err != nil {
+		return nil, fmt.Errorf("read checkpoint: %w", err)
+	}
+	var c Checkpoint
+	if err := json.Unmarshal(b, &c); err != nil {
+		return nil, fmt.Errorf("%s: corrupt checkpoint: %w", path, err)
+	}
+	return &c, nil
+}
+
+// chainConfig is the mcmc configuration a problem runs with. Every continuous parameter whose
+// prior support lies above zero (radii, thicknesses, densities, velocities) is proposed on a log
+// scale: the data constrain products like ρ r³, which are straight lines in log coordinates.
+// Initial proposal scales are a tenth of each prior's standard deviation (relative to the prior
+// median for log coordinates; common practice, no source); adaptation takes over from there.
+func chainConfig(cfg *Config, p *Problem) mcmc.Config {
+	sc := make([]float64, p.Dim())
+	logc := make([]bool, p.Dim())
+	for i, par := range p.Space.Params {
+		sc[i] = 0.1 * par.Prior.StdDev()
+		if lo, _ := par.Prior.Support(); par.Levels() == 0 && lo > 0 {
+			logc[i] = true
+			sc[i] /= par.Prior.Quantile(0.5)
+		}
+	}
+	return mcmc.Config{
+		Warmup: cfg.Sampler.WarmupSteps, Steps: cfg.Sampler.Steps, Thin: cfg.Sampler.Thin,
+		InitialScale: sc, Log: logc,
+		Init: func(r *rand.Rand, x []float64) { p.Space.Sample(r, x) },
+	}
+}
+
+// runState is what execute works with.
+type runState struct {
+	dir    string
+	cfg    *Config
+	prob   *Problem
+	mc     mcmc.Config
+	cp     *Checkpoint
+	chains []*mcmc.Chain
+	cols   *columns
+	meta   map[string]string
+	log    *slog.Logger
+}
+
+func execute(ctx context.Context, dir string, opt Options) error {
+	log := opt.Log
+	if log == nil {
+		log = slog.New(slog.NewTextHandler(io.Discard, nil))
+	}
+	cfg, prob, err := LoadRun(dir)
+	if err != nil {
+		return err
+	}
+	rs := &runState{dir: dir, cfg: cfg, prob: prob, mc: chainConfig(cfg, prob), log: log}
+	rs.cols = newColumns(prob)
+	if rs.meta, err = runMetadata(dir, cfg); err != nil {
+		return err
+	}
+	if err := rs.restore(); err != nil {
+		return err
+	}
+	if rs.cp.Complete {
+		log.Info("run already complete", "dir", dir)
+		return nil
+	}
+	workers := opt.Workers
+	if workers <= 0 {
+		workers = cfg.Sampler.Workers
+	}
+	if workers <= 0 {
+		workers = runtime.NumCPU()
+	}
+	return rs.loop(ctx, workers, opt)
+}
+
+// restore loads the checkpoint (or starts the chains afresh) and removes sample parts written
+// after the last checkpoint, which a crash between part and checkpoint can leave behind.
+func (rs *runState) restore() error {
+	samples := filepath.Join(rs.dir, SamplesDir)
+	if err := os.MkdirAll(samples, 0o755); err != nil {
+		return fmt.Errorf("samples folder: %w", err)
+	}
+	if err := store.CleanTemp(samples); err != nil {
+		return fmt.Errorf("clean samples folder: %w", err)
+	}
+	cp, err := ReadCheckpoint(rs.dir)
+	if err != nil {
+		return err
+	}
+	hash := rs.cfg.Hash()
+	if cp == nil {
+		cp = &Checkpoint{SchemaVersion: SchemaVersion, PlumbVersion: Version, GoVersion: runtime.Version(),
+			ConfigSHA256: hash, Seed: rs.cfg.Sampler.Seed}
+		for c := range rs.cfg.Sampler.Chains {
+			ch, err := mcmc.NewChain(rs.prob, rs.mc, rs.cfg.Sampler.Seed, c)
+			if err != nil {
+				return fmt.Errorf("start chains: %w", err)
+			}
+			rs.chains = append(rs.chains, ch)
+		}
+	} else {
+		if cp.ConfigSHA256 != hash {
+			return &ConfigError{File: filepath.Join(rs.dir, ConfigFile), Msg: "changed since the run started (config SHA-256 differs from the checkpoint's); a run resumes only with its own config"}
+		}
+		if cp.GoVersion != runtime.Version() {
+			rs.log.Warn("Go version differs from the one the run started with; random streams may differ, so the resumed draws may not equal an uninterrupted run's",
+				"checkpoint", cp.GoVersion, "now", runtime.Version())
+		}
+		if len(cp.Chains) != rs.cfg.Sampler.Chains {
+			return fmt.Errorf("checkpoint has %d chains, config %d", len(cp.Chains), rs.cfg.Sampler.Chains)
+		}
+		for _, st := range cp.Chains {
+			ch, err := mcmc.Restore(rs.prob, rs.mc, st)
+			if err != nil {
+				return fmt.Errorf("restore checkpoint: %w", err)
+			}
+			rs.chains = append(rs.chains, ch)
+		}
+	}
+	rs.cp = cp
+	ents, err := os.ReadDir(samples)
+	if err != nil {
+		return fmt.Errorf("samples folder: %w", err)
+	}
+	for _, e := range ents {
+		if !slices.Contains(cp.Parts, e.Name()) {
+			rs.log.Info("removing sample part written after the last checkpoint", "file", e.Name())
+			if err := os.Remove(filepath.Join(samples, e.Name())); err != nil {
+				return fmt.Errorf("remove stale part: %w", err)
+			}
+		}
+	}
+	return rs.writeCheckpoint()
+}
+
+func (rs *runState) writeCheckpoint() error {
+	rs.cp.Chains = rs.cp.Chains[:0]
+	done := true
+	for _, ch := range rs.chains {
+		rs.cp.Chains = append(rs.cp.Chains, ch.State())
+		done = done && ch.Done()
+	}
+	rs.cp.Complete = done
+	b, err := json.MarshalIndent(rs.cp, "", " ")
+	if err != nil {
+		return fmt.Errorf("encode checkpoint: %w", err)
+	}
+	if err := store.WriteFileAtomic(filepath.Join(rs.dir, CheckpointFile), b, 0o644); err != nil {
+		return fmt.Errorf("write checkpoint: %w", err)
+	}
+	return nil
+}
+
+// draw is one buffered row.
+type draw struct {
+	index  int64
+	lp     float64
+	x, der []float64
+}
+
+// progress holds counters shared with the progress reporter; they never influence the draws.
+type progress struct {
+	sweeps          []atomic.Int64
+	accepted, tried []atomic.Int64
+}
+
+func (rs *runState) loop(ctx context.Context, workers int, opt Options) error {
+	var stop atomic.Bool
+	defer context.AfterFunc(ctx, func() { stop.Store(true) })()
+	every := rs.cfg.Output.CheckpointEverySteps
+	pr := &progress{
+		sweeps:   make([]atomic.Int64, len(rs.chains)),
+		accepted: make([]atomic.Int64, len(rs.chains)),
+		tried:    make([]atomic.Int64, len(rs.chains)),
+	}
+	for i, ch := range rs.chains {
+		pr.sweeps[i].Store(ch.Iter())
+	}
+	repDone := make(chan struct{})
+	var repWG sync.WaitGroup
+	repWG.Add(1)
+	go func() {
+		defer repWG.Done()
+		rs.report(pr, opt, repDone)
+	}()
+	stopReport := sync.OnceFunc(func() { close(repDone); repWG.Wait() })
+	defer stopReport()
+
+	rs.log.Info("sampling", "dir", rs.dir, "chains", len(rs.chains), "workers", workers,
+		"parameters", rs.prob.Dim(), "observations", len(rs.prob.Observations))
+	for {
+		bufs := make([][]draw, len(rs.chains))
+		jobs := make(chan int)
+		var wg sync.WaitGroup
+		for range min(workers, len(rs.chains)) {
+			wg.Add(1)
+			go func() {
+				defer wg.Done()
+				for c := range jobs {
+					bufs[c] = rs.advance(c, every, &stop, pr)
+				}
+			}()
+		}
+		for c := range rs.chains {
+			jobs <- c
+		}
+		close(jobs)
+		wg.Wait()
+		if err := rs.writePart(bufs); err != nil {
+			return err
+		}
+		if err := rs.writeCheckpoint(); err != nil {
+			return err
+		}
+		if rs.cp.Complete {
+			stopReport()
+			rs.log.Info("run complete", "dir", rs.dir)
+			return nil
+		}
+		if stop.Load() {
+			stopReport()
+			rs.log.Info("interrupted; checkpoint written", "dir", rs.dir)
+			return ErrInterrupted
+		}
+	}
+}
+
+// advance runs chain c to its next checkpoint boundary (a multiple of every sweeps), in chunks
+// so that progress can be reported and a stop request honoured promptly.
+func (rs *runState) advance(c int, every int64, stop *atomic.Bool, pr *progress) []draw {
+	ch := rs.chains[c]
+	until := (ch.Iter()/every + 1) * every
+	var out []draw
+	emit := func(i int64, x, der []float64, lp float64) {
+		out = append(out, draw{index: i, lp: lp, x: slices.Clone(x), der: slices.Clone(der)})
+	}
+	const chunk = 256
+	for ch.Iter() < until && !ch.Done() && !stop.Load() {
+		ch.Advance(min(until, ch.Iter()+chunk), stop.Load, emit)
+		pr.sweeps[c].Store(ch.Iter())
+		k := ch.Counts()
+		pr.accepted[c].Store(k.Accepted[0] + k.Accepted[1])
+		pr.tried[c].Store(k.Proposed[0] + k.Proposed[1])
+	}
+	return out
+}
+
+// writePart writes the buffered draws of all chains (chain order, then draw order) as the next
+// sample part, then lists it in the checkpoint (the checkpoint itself is written after).
+func (rs *runState) writePart(bufs [][]draw) error {
+	n := 0
+	for _, b := range bufs {
+		n += len(b)
+	}
+	if n == 0 {
+		return nil
+	}
+	batch := rs.cols.batch(bufs)
+	name := store.PartName(rs.cp.NextPart)
+	path := filepath.Join(rs.dir, SamplesDir, name)
+	if err := store.WritePart(path, batch, rs.meta); err != nil {
+		return fmt.Errorf("write sample part: %w", err)
+	}
+	rs.cp.Parts = append(rs.cp.Parts, name)
+	rs.cp.NextPart++
+	return nil
+}
+
+func runMetadata(dir string, cfg *Config) (map[string]string, error) {
+	y, err := os.ReadFile(filepath.Join(dir, ConfigFile))
+	if err != nil {
+		return nil, fmt.Errorf("read resolved config: %w", err)
+	}
+	return map[string]string{
+		"plumb.version":        Version,
+		"plumb.schema_version": strconv.Itoa(SchemaVersion),
+		"plumb.config_sha256":  cfg.Hash(),
+		"plumb.seed":           strconv.FormatUint(cfg.Sampler.Seed, 10),
+		"plumb.config":         string(y),
+		"plumb.caution":        Caution,
+	}, nil
+}
+
+// report prints progress: a live line on a terminal, or a log line every LogEverySeconds.
+func (rs *runState) report(pr *progress, opt Options, done <-chan struct{}) {
+	total := rs.mc.Total() * int64(len(rs.chains))
+	sum := func(a []atomic.Int64) int64 {
+		s := int64(0)
+		for i := range a {
+			s += a[i].Load()
+		}
+		return s
+	}
+	start, startSweeps := time.Now(), sum(pr.sweeps)
+	period := time.Duration(rs.cfg.Output.LogEverySeconds * float64(time.Second))
+	if opt.Live != nil {
+		period = 500 * time.Millisecond
+	}
+	tick := time.NewTicker(period)
+	defer tick.Stop()
+	line := func() (float64, float64, time.Duration, float64) {
+		s := sum(pr.sweeps)
+		el := time.Since(start).Seconds()
+		rate := float64(s-startSweeps) / max(el, 1e-9)
+		eta := time.Duration(0)
+		if rate > 0 {
+			eta = time.Duration(float64(total-s) / rate * float64(time.Second)).Round(time.Second)
+		}
+		acc := float64(sum(pr.accepted)) / max(float64(sum(pr.tried)), 1)
+		return 100 * float64(s) / float64(total), rate, eta, acc
+	}
+	for {
+		select {
+		case <-done:
+			if opt.Live != nil {
+				pct, rate, _, acc := line()
+				fmt.Fprintf(opt.Live, "\r%5.1f %%  %8.0f draws/s  acceptance %.2f  done%20s\n", pct, rate, acc, "")
+			}
+			return
+		case <-tick.C:
+			pct, rate, eta, acc := line()
+			if opt.Live != nil {
+				fmt.Fprintf(opt.Live, "\r%5.1f %%  %8.0f draws/s  ETA %-10s acceptance %.2f ", pct, rate, eta, acc)
+			} else {
+				rs.log.Info("progress", "percent", fmt.Sprintf("%.1f", pct), "draws_per_s", fmt.Sprintf("%.0f", rate),
+					"eta", eta.String(), "acceptance", fmt.Sprintf("%.3f", acc))
+			}
+		}
+	}
+}

@@ -1,0 +1,279 @@
+package inversion
+
+import (
+	"encoding/json"
+	"fmt"
+	"io"
+	"math"
+	"path/filepath"
+	"slices"
+	"strings"
+	"text/tabwriter"
+
+	"plumb/inversion/mcmc"
+	"plumb/inversion/store"
+	"plumb/priors"
+)
+
+// ParamSummary is the posterior of one continuous parameter (or derived column), output units.
+type ParamSummary struct {
+	Name  string   `json:"name"`
+	Unit  string   `json:"unit"`
+	Prior string   `json:"prior,omitempty"`
+	Mean  *float64 `json:"mean"`
+	SD    *float64 `json:"sd"`
+	Q05   *float64 `json:"q05"`
+	Q50   *float64 `json:"q50"`
+	Q95   *float64 `json:"q95"`
+	// RHat is the rank-normalized split-R̂ and ESSBulk / ESSTail the effective sample sizes
+	// (Vehtari et al. 2021); null when undefined (e.g. a constant column).
+	RHat    *float64 `json:"rhat"`
+	ESSBulk *float64 `json:"ess_bulk"`
+	ESSTail *float64 `json:"ess_tail"`
+}
+
+// CategorySummary is the posterior of a categorical parameter.
+type CategorySummary struct {
+	Name string `json:"name"`
+	// Probability maps each label to its posterior probability (prior probability alongside).
+	Probability map[string]float64 `json:"probability"`
+	Prior       map[string]float64 `json:"prior_probability"`
+}
+
+// ObservationSummary compares an observation with its posterior predictive.
+type ObservationSummary struct {
+	Name          string   `json:"name"`
+	Unit          string   `json:"unit"`
+	Observed      float64  `json:"observed"`
+	Sigma         float64  `json:"sigma"`
+	PredictedMean *float64 `json:"predicted_mean"`
+	PredictedSD   *float64 `json:"predicted_sd"`
+	// MeanResidual is the posterior mean of (predicted − observed)/σ.
+	MeanResidual *float64 `json:"mean_residual"`
+}
+
+// ChainSummary gives a chain's length and acceptance rates (sampling phase).
+type ChainSummary struct {
+	Chain            int      `json:"chain"`
+	Draws            int64    `json:"draws"`
+	Acceptance       *float64 `json:"acceptance"`
+	StateAcceptance  *float64 `json:"categorical_acceptance,omitempty"`
+	InvalidProposals int64    `json:"invalid_proposals"`
+}
+
+// Summary is a run's posterior summary, as printed by `plumb summary` and saved as summary.json.
+type Summary struct {
+	Planet       string               `json:"planet"`
+	Complete     bool                 `json:"complete"`
+	Draws        int                  `json:"draws"`
+	Parameters   []ParamSummary       `json:"parameters"`
+	Categorical  []CategorySummary    `json:"categorical"`
+	Observations []ObservationSummary `json:"observations"`
+	Chains       []ChainSummary       `json:"chains"`
+	Caution      string               `json:"caution"`
+}
+
+func fp(v float64) *float64 {
+	if math.IsNaN(v) || math.IsInf(v, 0) {
+		return nil
+	}
+	return &v
+}
+
+// Summarize reads a run folder and summarises its posterior.
+func Summarize(dir string) (*Summary, error) {
+	_, p, err := LoadRun(dir)
+	if err != nil {
+		return nil, err
+	}
+	cp, err := ReadCheckpoint(dir)
+	if err != nil {
+		return nil, err
+	}
+	if cp == nil {
+		return nil, fmt.Errorf("%s: no checkpoint: the run has not started", dir)
+	}
+	b, _, err := store.ReadParts(filepath.Join(dir, SamplesDir))
+	if err != nil {
+		return nil, fmt.Errorf("read samples: %w", err)
+	}
+	s := &Summary{Planet: p.Name, Complete: cp.Complete, Draws: b.Len(), Caution: Caution}
+	chainCol, _ := b.Int64(ColChain)
+	nChains := len(cp.Chains)
+	split := func(name string) [][]float64 {
+		v, _ := b.Float64(name)
+		out := make([][]float64, nChains)
+		for i, c := range chainCol {
+			if int(c) < nChains {
+				out[c] = append(out[c], v[i])
+			}
+		}
+		return out
+	}
+	for _, par := range p.Space.Params {
+		if labels, ok := categoricalLabels(par); ok {
+			v, _ := b.String(par.Name)
+			cs := CategorySummary{Name: par.Name, Probability: map[string]float64{}, Prior: map[string]float64{}}
+			for i, l := range labels {
+				cs.Prior[l] = math.Exp(par.Prior.LogProb(float64(i)))
+				cs.Probability[l] = 0
+			}
+			for _, x := range v {
+				cs.Probability[x] += 1 / float64(len(v))
+			}
+			s.Categorical = append(s.Categorical, cs)
+			continue
+		}
+		ps := paramSummary(par.Name, par.Unit, split(par.Name))
+		ps.Prior = priorString(par)
+		s.Parameters = append(s.Parameters, ps)
+	}
+	for _, n := range p.derivedCol {
+		s.Parameters = append(s.Parameters, paramSummary(n, "km", split(n)))
+	}
+	for _, o := range p.Observations {
+		v, _ := b.Float64(PredictionPrefix + o.Observable.Key)
+		m, sd := meanSD(v)
+		si := o.Observable.ToSI()
+		s.Observations = append(s.Observations, ObservationSummary{
+			Name: o.Observable.Key, Unit: o.Observable.Unit,
+			Observed: o.Value / si, Sigma: o.Sigma / si,
+			PredictedMean: fp(m), PredictedSD: fp(sd),
+			MeanResidual: fp((m - o.Value/si) / (o.Sigma / si)),
+		})
+	}
+	for _, st := range cp.Chains {
+		k := st.Counts
+		cs := ChainSummary{Chain: st.Chain, Draws: st.Draws, InvalidProposals: k.Invalid[0] + k.Invalid[1]}
+		cs.Acceptance = fp(float64(k.Accepted[1]) / float64(k.Proposed[1]))
+		if k.DiscreteProposed[1] > 0 {
+			cs.StateAcceptance = fp(float64(k.DiscreteAccepted[1]) / float64(k.DiscreteProposed[1]))
+		}
+		s.Chains = append(s.Chains, cs)
+	}
+	return s, nil
+}
+
+// priorString renders a prior in the parameter's output unit.
+func priorString(par priors.Param) string {
+	if par.Unit == "" {
+		return par.PriorString()
+	}
+	return par.PriorString() + " " + par.Unit
+}
+
+func categoricalLabels(p priors.Param) ([]string, bool) {
+	c, ok := p.Prior.(priors.Categorical)
+	if !ok {
+		return nil, false
+	}
+	return c.Labels, true
+}
+
+// paramSummary summarises per-chain draws. Diagnostics need equal-length chains: chains of an
+// interrupted run may differ by a few draws, so they are cut to the shortest for R̂ and ESS.
+func paramSummary(name, unit string, chains [][]float64) ParamSummary {
+	var all []float64
+	short := math.MaxInt
+	for _, c := range chains {
+		all = append(all, c...)
+		short = min(short, len(c))
+	}
+	m, sd := meanSD(all)
+	ps := ParamSummary{Name: name, Unit: unit, Mean: fp(m), SD: fp(sd)}
+	if len(all) == 0 {
+		return ps
+	}
+	ps.Q05, ps.Q50, ps.Q95 = fp(mcmc.Quantile7(all, 0.05)), fp(mcmc.Quantile7(all, 0.5)), fp(mcmc.Quantile7(all, 0.95))
+	eq := make([][]float64, len(chains))
+	for i, c := range chains {
+		eq[i] = c[:short]
+	}
+	ps.RHat, ps.ESSBulk, ps.ESSTail = fp(mcmc.RankRHat(eq)), fp(mcmc.ESSBulk(eq)), fp(mcmc.ESSTail(eq))
+	return ps
+}
+
+func meanSD(v []float64) (float64, float64) {
+	if len(v) == 0 {
+		return math.NaN(), math.NaN()
+	}
+	s := 0.0
+	for _, x := range v {
+		s += x
+	}
+	m := s / float64(len(v))
+	ss := 0.0
+	for _, x := range v {
+		ss += (x - m) * (x - m)
+	}
+	if len(v) < 2 {
+		return m, math.NaN()
+	}
+	return m, math.Sqrt(ss / float64(len(v)-1))
+}
+
+// JSON renders the summary as indented JSON.
+func (s *Summary) JSON() ([]byte, error) {
+	b, err := json.MarshalIndent(s, "", "  ")
+	if err != nil {
+		return nil, fmt.Errorf("encode summary: %w", err)
+	}
+	return append(b, '\n'), nil
+}
+
+func fmtp(v *float64, f string) string {
+	if v == nil {
+		return "–"
+	}
+	return fmt.Sprintf(f, *v)
+}
+
+// WriteText prints the summary as aligned tables.
+func (s *Summary) WriteText(w io.Writer) error {
+	var sb strings.Builder
+	state := "complete"
+	if !s.Complete {
+		state = "INCOMPLETE (resume to finish)"
+	}
+	fmt.Fprintf(&sb, "Posterior of %s: %d draws, run %s\n\n", s.Planet, s.Draws, state)
+	tw := tabwriter.NewWriter(&sb, 2, 4, 2, ' ', 0)
+	fmt.Fprintln(tw, "parameter\tunit\tmean\tsd\t5 %\t50 %\t95 %\tR̂\tESS bulk\tESS tail\tprior")
+	for _, p := range s.Parameters {
+		fmt.Fprintf(tw, "%s\t%s\t%s\t%s\t%s\t%s\t%s\t%s\t%s\t%s\t%s\n", p.Name, p.Unit,
+			fmtp(p.Mean, "%.5g"), fmtp(p.SD, "%.3g"), fmtp(p.Q05, "%.5g"), fmtp(p.Q50, "%.5g"), fmtp(p.Q95, "%.5g"),
+			fmtp(p.RHat, "%.3f"), fmtp(p.ESSBulk, "%.0f"), fmtp(p.ESSTail, "%.0f"), p.Prior)
+	}
+	tw.Flush()
+	for _, c := range s.Categorical {
+		fmt.Fprintf(&sb, "\n%s:", c.Name)
+		keys := make([]string, 0, len(c.Probability))
+		for k := range c.Probability {
+			keys = append(keys, k)
+		}
+		slices.Sort(keys)
+		for _, k := range keys {
+			fmt.Fprintf(&sb, "  P(%s) = %.3f (prior %.3f)", k, c.Probability[k], c.Prior[k])
+		}
+		sb.WriteString("\n")
+	}
+	if len(s.Observations) > 0 {
+		sb.WriteString("\n")
+		tw = tabwriter.NewWriter(&sb, 2, 4, 2, ' ', 0)
+		fmt.Fprintln(tw, "observation\tunit\tobserved\tsigma\tpredicted mean\tpredicted sd\tmean residual (σ)")
+		for _, o := range s.Observations {
+			fmt.Fprintf(tw, "%s\t%s\t%.6g\t%.3g\t%s\t%s\t%s\n", o.Name, o.Unit, o.Observed, o.Sigma,
+				fmtp(o.PredictedMean, "%.6g"), fmtp(o.PredictedSD, "%.3g"), fmtp(o.MeanResidual, "%+.2f"))
+		}
+		tw.Flush()
+	}
+	sb.WriteString("\n")
+	tw = tabwriter.NewWriter(&sb, 2, 4, 2, ' ', 0)
+	fmt.Fprintln(tw, "chain\tdraws\tacceptance\tstate acceptance\tinvalid proposals")
+	for _, c := range s.Chains {
+		fmt.Fprintf(tw, "%d\t%d\t%s\t%s\t%d\n", c.Chain, c.Draws, fmtp(c.Acceptance, "%.3f"), fmtp(c.StateAcceptance, "%.3f"), c.InvalidProposals)
+	}
+	tw.Flush()
+	fmt.Fprintf(&sb, "\nCaution: %s\n", s.Caution)
+	_, err := io.WriteString(w, sb.String())
+	return err
+}
