@@ -1,6 +1,9 @@
 package store
 
 import (
+	"os"
+	"path/filepath"
+	"reflect"
 	"slices"
 	"strings"
 	"testing"
@@ -151,5 +154,27 @@ func TestPartName(t *testing.T) {
 		if got := PartName(i); got != want {
 			t.Errorf("PartName(%d) = %q, want %q", i, got, want)
 		}
+	}
+}
+
+// Part indices beyond five digits still list in index order.
+func TestListPartsNumericOrder(t *testing.T) {
+	dir := t.TempDir()
+	for _, i := range []int{100000, 2, 99999, 0} {
+		if err := os.WriteFile(filepath.Join(dir, PartName(i)), nil, 0o644); err != nil {
+			t.Fatal(err)
+		}
+	}
+	got, err := ListParts(dir)
+	if err != nil {
+		t.Fatal(err)
+	}
+	var names []string
+	for _, p := range got {
+		names = append(names, filepath.Base(p))
+	}
+	want := []string{PartName(0), PartName(2), PartName(99999), PartName(100000)}
+	if !reflect.DeepEqual(names, want) {
+		t.Errorf("order %v, want %v", names, want)
 	}
 }

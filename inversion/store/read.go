@@ -9,6 +9,7 @@ import (
 	"os"
 	"path/filepath"
 	"slices"
+	"sort"
 
 	"github.com/parquet-go/parquet-go"
 	"github.com/parquet-go/parquet-go/deprecated"
@@ -74,10 +75,18 @@ func ListParts(dir string) ([]string, error) {
 			parts = append(parts, filepath.Join(dir, e.Name()))
 		}
 	}
+	// Numeric order: PartName pads to five digits and widens beyond, so a longer name is a
+	// larger index and equal lengths sort lexically.
+	sort.SliceStable(parts, func(i, j int) bool {
+		if len(parts[i]) != len(parts[j]) {
+			return len(parts[i]) < len(parts[j])
+		}
+		return parts[i] < parts[j]
+	})
 	return parts, nil
 }
 
-// ReadParts reads every part file (PartPattern) in dir in lexical order and
+// ReadParts reads every part file (PartPattern) in dir in index order and
 // concatenates them. All parts must have the same columns (names, kinds and
 // units); otherwise the error names the first differing file. Temporary files
 // of interrupted writes are ignored. It returns the metadata of the first

@@ -60,7 +60,7 @@ func Perm(perm os.FileMode) Option {
 
 // PartName returns the file name of part i of a sample directory:
 // "part-00000.parquet", "part-00001.parquet", …; indices above 99999 get
-// more digits, so lexical order matches numeric order only below 100000.
+// more digits (ListParts orders them by index all the same).
 func PartName(i int) string { return fmt.Sprintf("part-%05d.parquet", i) }
 
 // createdByOption sets the footer's created_by string.
