@@ -93,6 +93,14 @@ func runCmd() *cobra.Command {
 	return c
 }
 
+// requireRunDir is an input error unless dir holds a run's resolved config.
+func requireRunDir(dir string) error {
+	if _, err := os.Stat(filepath.Join(dir, inversion.ConfigFile)); err != nil {
+		return inputError{fmt.Errorf("%s: not a run folder (no %s)", dir, inversion.ConfigFile)}
+	}
+	return nil
+}
+
 func resumeCmd() *cobra.Command {
 	var workers int
 	c := &cobra.Command{
@@ -100,8 +108,8 @@ func resumeCmd() *cobra.Command {
 		Short: "Continue an interrupted run exactly where it stopped",
 		Args:  cobra.ExactArgs(1),
 		RunE: func(cmd *cobra.Command, args []string) error {
-			if _, err := os.Stat(filepath.Join(args[0], inversion.ConfigFile)); err != nil {
-				return inputError{fmt.Errorf("%s: not a run folder (no %s)", args[0], inversion.ConfigFile)}
+			if err := requireRunDir(args[0]); err != nil {
+				return err
 			}
 			if err := inversion.Resume(cmd.Context(), args[0], runOptions(cmd, workers)); err != nil {
 				return err
@@ -120,8 +128,8 @@ func summaryCmd() *cobra.Command {
 		Short: "Print the posterior of every parameter and of the layer states; write summary.json",
 		Args:  cobra.ExactArgs(1),
 		RunE: func(cmd *cobra.Command, args []string) error {
-			if _, err := os.Stat(filepath.Join(args[0], inversion.ConfigFile)); err != nil {
-				return inputError{fmt.Errorf("%s: not a run folder (no %s)", args[0], inversion.ConfigFile)}
+			if err := requireRunDir(args[0]); err != nil {
+				return err
 			}
 			return writeSummary(cmd.OutOrStdout(), args[0], asJSON)
 		},
