@@ -144,30 +144,68 @@ func Load(path string, overrides map[string]any) (*Config, error) {
 	v.SetEnvPrefix("PLUMB")
 	v.SetEnvKeyReplacer(strings.NewReplacer(".", "_"))
 	v.AutomaticEnv()
+	var c Config
+	if err := readStrict(v, path, overrides, &c); err != nil {
+		return nil, err
+	}
+	return &c, nil
+}
+
+// ModelFile is a layered interior model with fixed values, for plumb forward: the planet and
+// layers sections of a config, nothing else.
+type ModelFile struct {
+	// Planet holds the body's name and radius (fixed).
+	Planet PlanetConfig `mapstructure:"planet"`
+	// Layers are listed from the centre outward, every property fixed.
+	Layers []LayerConfig `mapstructure:"layers"`
+}
+
+// LoadModel reads a layered model file (YAML or TOML, strict) and builds it as a problem with no
+// sampled parameters and no observations; Problem.Solve(nil) then gives its structure. A prior
+// anywhere in the file is an error naming its key.
+func LoadModel(path string) (*Problem, error) {
+	var m ModelFile
+	if err := readStrict(viper.New(), path, nil, &m); err != nil {
+		return nil, err
+	}
+	c := &Config{Planet: m.Planet, Layers: m.Layers,
+		Sampler: SamplerConfig{Chains: 1, Steps: 1, Thin: 1}, Output: OutputConfig{CheckpointEverySteps: 1, LogEverySeconds: 1}}
+	p, err := Build(c, path)
+	if err != nil {
+		return nil, err
+	}
+	if p.Dim() > 0 {
+		return nil, &ConfigError{File: path, Key: p.keys[0], Msg: "a model file takes fixed values, not priors"}
+	}
+	return p, nil
+}
+
+// readStrict reads a YAML/TOML file into out with viper, after applying overrides; unknown keys
+// are errors naming them.
+func readStrict(v *viper.Viper, path string, overrides map[string]any, out any) error {
 	switch strings.ToLower(filepath.Ext(path)) {
 	case ".yaml", ".yml":
 		v.SetConfigType("yaml")
 	case ".toml":
 		v.SetConfigType("toml")
 	default:
-		return nil, &ConfigError{File: path, Msg: "unknown config format (want .yaml, .yml or .toml)"}
+		return &ConfigError{File: path, Msg: "unknown file format (want .yaml, .yml or .toml)"}
 	}
 	f, err := os.Open(path)
 	if err != nil {
-		return nil, &ConfigError{File: path, Msg: describeOpenError(err)}
+		return &ConfigError{File: path, Msg: describeOpenError(err)}
 	}
 	defer f.Close()
 	if err := v.ReadConfig(f); err != nil {
-		return nil, &ConfigError{File: path, Msg: oneLine(strings.TrimPrefix(err.Error(), "While parsing config: "))}
+		return &ConfigError{File: path, Msg: oneLine(strings.TrimPrefix(err.Error(), "While parsing config: "))}
 	}
 	for k, o := range overrides {
 		v.Set(k, o)
 	}
-	var c Config
-	if err := v.UnmarshalExact(&c); err != nil {
-		return nil, decodeError(path, err)
+	if err := v.UnmarshalExact(out); err != nil {
+		return decodeError(path, err)
 	}
-	return &c, nil
+	return nil
 }
 
 func describeOpenError(err error) string {

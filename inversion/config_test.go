@@ -251,7 +251,7 @@ func TestConfigErrors(t *testing.T) {
 			"", []string{"sampler.chains"}},
 		{"bad seed type", func(s string) string { return strings.Replace(s, "seed: 11", "seed: eleven", 1) },
 			"", []string{"sampler.seed"}},
-		{"bad format", nil, "c.json", []string{"c.json", "unknown config format"}},
+		{"bad format", nil, "c.json", []string{"c.json", "unknown file format"}},
 	}
 	for _, tc := range cases {
 		t.Run(tc.name, func(t *testing.T) {

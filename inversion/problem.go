@@ -1,6 +1,7 @@
 package inversion
 
 import (
+	"errors"
 	"fmt"
 	"math"
 	"regexp"
@@ -52,6 +53,7 @@ type Problem struct {
 	monotone   bool
 	derivedCol []string // names of derived outer-radius columns, in layer order
 	levels     []int
+	keys       []string // config key of each parameter, for messages
 }
 
 // Observation is one datum with its Gaussian error, SI units.
@@ -98,7 +100,7 @@ func Build(c *Config, file string) (*Problem, error) {
 	if err := p.observations(b, c.Observations); err != nil {
 		return nil, err
 	}
-	p.Space = b.space
+	p.Space, p.keys = b.space, b.keys
 	if err := p.Space.Validate(); err != nil {
 		return nil, &ConfigError{File: file, Msg: err.Error()}
 	}
@@ -454,6 +456,20 @@ func densityMonotone(ls []layerPlan, x []float64) bool {
 	return true
 }
 
+// ErrConstraint reports a parameter vector that violates a structural constraint (radii not
+// increasing, density decreasing with depth when that constraint is on): a zero prior.
+var ErrConstraint = errors.New("structural constraint violated")
+
+// Solve builds the model for x and solves its structure. An error means x is not a physical
+// model (ErrConstraint, or the forward model's own error).
+func (p *Problem) Solve(x []float64) (*forward.Structure, error) {
+	m, ok := p.Model(x)
+	if !ok {
+		return nil, ErrConstraint
+	}
+	return forward.Solve(m)
+}
+
 // LogDensity is the log posterior up to the evidence: log prior + Gaussian log likelihood
 // (normalised). It fills derived with the log prior, the log likelihood, the predictions (SI) and
 // the derived radii (m). A non-physical model returns −Inf.
@@ -462,11 +478,7 @@ func (p *Problem) LogDensity(x, derived []float64) float64 {
 	if math.IsInf(lp, -1) || math.IsNaN(lp) {
 		return math.Inf(-1)
 	}
-	m, ok := p.Model(x)
-	if !ok {
-		return math.Inf(-1)
-	}
-	st, err := forward.Solve(m)
+	st, err := p.Solve(x)
 	if err != nil {
 		return math.Inf(-1)
 	}
@@ -484,7 +496,7 @@ func (p *Problem) LogDensity(x, derived []float64) float64 {
 	k := 2 + len(p.Observations)
 	for i, l := range p.layers {
 		if l.outerColumn {
-			derived[k] = m.Layers[i].Outer
+			derived[k] = st.Boundary[i+1]
 			k++
 		}
 	}

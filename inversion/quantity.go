@@ -43,6 +43,7 @@ var (
 type builder struct {
 	file  string
 	space priors.Space
+	keys  []string // config key of each parameter
 }
 
 func (b *builder) errf(key, format string, a ...any) error {
@@ -192,6 +193,7 @@ func (b *builder) add(key string, p priors.Param) (slot, bool, error) {
 		return slot{}, false, b.errf(key, "parameter name %q is used twice (rename a layer)", p.Name)
 	}
 	b.space.Params = append(b.space.Params, p)
+	b.keys = append(b.keys, key)
 	return slot{param: len(b.space.Params) - 1}, true, nil
 }
 

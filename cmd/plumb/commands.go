@@ -8,6 +8,7 @@ import (
 	"log/slog"
 	"os"
 	"path/filepath"
+	"strings"
 	"text/tabwriter"
 
 	"github.com/spf13/cobra"
@@ -218,29 +219,26 @@ func forwardCmd() *cobra.Command {
 	var asJSON bool
 	var perLayer int
 	c := &cobra.Command{
-		Use:   "forward --model FILE.csv",
-		Short: "Evaluate one tabulated interior model",
+		Use:   "forward --model FILE",
+		Short: "Evaluate one interior model (tabulated CSV or layered YAML)",
 		Long: "forward reads a tabulated model (CSV with header radius_km,density_kg_m3,vp_km_s,vs_km_s and an\n" +
 			"optional viscosity_pa_s column; rows from the centre out; a discontinuity is two rows at one\n" +
 			"radius; vs = 0 marks a fluid) and prints its mass, mean density, surface gravity, moment of\n" +
-			"inertia factor and central pressure.",
+			"inertia factor and central pressure. A .yaml/.toml FILE is a layered model instead: the planet\n" +
+			"and layers sections of a run config with every value fixed.",
 		Args: cobra.NoArgs,
 		RunE: func(cmd *cobra.Command, _ []string) error {
 			if model == "" {
-				return usageError{fmt.Errorf("forward: --model FILE.csv is required")}
+				return usageError{fmt.Errorf("forward: --model FILE is required")}
 			}
-			m, err := modelfile.ReadCSVFile(model)
+			st, err := solveModelFile(model)
 			if err != nil {
-				return inputError{err}
-			}
-			st, err := forward.Solve(m)
-			if err != nil {
-				return inputError{fmt.Errorf("%s: %w", model, err)}
+				return err
 			}
 			r := forwardResult{
 				RadiusKm: st.Radius() / 1e3, MassKg: st.Mass, MeanDensityKgM3: st.MeanDensity(),
 				SurfaceGravityMS2: st.SurfaceGravity(), MoIFactor: st.MoIFactor(),
-				CentralPressurePa: st.CentralPressure(), Layers: len(m.Layers),
+				CentralPressurePa: st.CentralPressure(), Layers: len(st.Model.Layers),
 			}
 			if profile != "" {
 				if err := writeProfile(profile, st.Profile(perLayer)); err != nil {
@@ -267,11 +265,37 @@ func forwardCmd() *cobra.Command {
 		},
 	}
 	f := c.Flags()
-	f.StringVar(&model, "model", "", "tabulated model file (CSV)")
+	f.StringVar(&model, "model", "", "model file: tabulated .csv, or layered .yaml/.toml")
 	f.BoolVar(&asJSON, "json", false, "print JSON")
 	f.StringVar(&profile, "profile", "", "also write the solved radius/density/vp/vs/g/P profile to this CSV file")
 	f.IntVar(&perLayer, "nodes-per-layer", 2, "profile nodes per layer (with --profile)")
 	return c
+}
+
+// solveModelFile reads a tabulated CSV model or a layered YAML/TOML model (the planet and layers
+// sections of a config, all values fixed) and solves its structure.
+func solveModelFile(path string) (*forward.Structure, error) {
+	switch strings.ToLower(filepath.Ext(path)) {
+	case ".yaml", ".yml", ".toml":
+		p, err := inversion.LoadModel(path)
+		if err != nil {
+			return nil, err
+		}
+		st, err := p.Solve(nil)
+		if err != nil {
+			return nil, inputError{fmt.Errorf("%s: not a physical model: %w", path, err)}
+		}
+		return st, nil
+	}
+	m, err := modelfile.ReadCSVFile(path)
+	if err != nil {
+		return nil, inputError{err}
+	}
+	st, err := forward.Solve(m)
+	if err != nil {
+		return nil, inputError{fmt.Errorf("%s: %w", path, err)}
+	}
+	return st, nil
 }
 
 // writeProfile writes a profile CSV atomically, refusing to overwrite an existing file.

@@ -200,3 +200,31 @@ func TestBadInput(t *testing.T) {
 		})
 	}
 }
+
+// The demo's truth as a layered YAML model and as a tabulated CSV model is the same planet.
+func TestForwardYAMLEqualsCSV(t *testing.T) {
+	demo := filepath.Join("..", "..", "runs", "demo")
+	get := func(file string) map[string]float64 {
+		code, out, errOut := plumb(t, "forward", "--model", filepath.Join(demo, file), "--json")
+		if code != 0 {
+			t.Fatalf("%s: exit %d: %s", file, code, errOut)
+		}
+		var r map[string]float64
+		if err := json.Unmarshal([]byte(out), &r); err != nil {
+			t.Fatal(err)
+		}
+		return r
+	}
+	y, c := get("truth.yaml"), get("truth.csv")
+	for _, k := range []string{"mass_kg", "moi_factor", "central_pressure_pa", "surface_gravity_m_s2"} {
+		if math.Abs(y[k]-c[k]) > 1e-12*math.Abs(c[k]) {
+			t.Errorf("%s: YAML %v, CSV %v", k, y[k], c[k])
+		}
+	}
+	dir := t.TempDir()
+	bad := write(t, dir, "prior.yaml", smallConfig[:strings.Index(smallConfig, "observations:")])
+	code, _, stderr := plumb(t, "forward", "--model", bad)
+	if code != 2 || !strings.Contains(stderr, "layers[0].outer_radius_km") || !strings.Contains(stderr, "fixed values") {
+		t.Errorf("model file with priors: exit %d, %q", code, stderr)
+	}
+}
