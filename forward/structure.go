@@ -178,8 +178,17 @@ func Solve(m Model) (*Structure, error) {
 	if err := m.Validate(); err != nil {
 		return nil, fmt.Errorf("invalid model: %w", err)
 	}
+	s := newStructure(m)
+	if err := s.integrate(); err != nil {
+		return nil, err
+	}
+	return s, nil
+}
+
+// newStructure allocates the structure of m and sets its boundaries; the
+// integrals are left to integrate. The model is not validated.
+func newStructure(m Model) *Structure {
 	L := len(m.Layers)
-	R := m.Radius()
 	buf := make([]float64, 4*(L+1))
 	s := &Structure{
 		Model:            m,
@@ -191,6 +200,16 @@ func Solve(m Model) (*Structure, error) {
 	for i := range m.Layers {
 		s.Boundary[i+1] = m.Layers[i].Outer
 	}
+	return s
+}
+
+// integrate (re)computes enclosed masses, boundary pressures, mass and inertia
+// from the current layer densities of s.Model, whose radii must be those the
+// structure was allocated with.
+func (s *Structure) integrate() error {
+	m := s.Model
+	L := len(m.Layers)
+	R := m.Radius()
 	massScale := 4 * math.Pi * R * R * R
 	pScale := 4 * math.Pi * G * R * R
 	var sh shell
@@ -213,10 +232,10 @@ func Solve(m Model) (*Structure, error) {
 	s.Mass = s.EnclosedMass[L]
 	s.Inertia = 8 * math.Pi / 3 * R * R * R * R * R * inert
 	if !finite(s.Mass) || !finite(s.Inertia) || !finite(s.BoundaryPressure[0]) || !(s.Mass > 0) {
-		return nil, fmt.Errorf("model out of numerical range: mass %g kg, inertia %g kg m², central pressure %g Pa",
+		return fmt.Errorf("model out of numerical range: mass %g kg, inertia %g kg m², central pressure %g Pa",
 			s.Mass, s.Inertia, s.BoundaryPressure[0])
 	}
-	return s, nil
+	return nil
 }
 
 // Radius returns the planet radius (m).

@@ -57,6 +57,9 @@ type LayerConfig struct {
 	VsKmS         any `mapstructure:"vs_km_s" json:"vs_km_s" yaml:"vs_km_s"`
 	// State is "liquid", "solid" (default) or a categorical prior over them.
 	State any `mapstructure:"state" json:"state,omitempty" yaml:"state,omitempty"`
+	// EOS, instead of density_kg_m3/vp_km_s/vs_km_s, gives the layer an equation of state:
+	// density and moduli then follow from the hydrostatic pressure (see eosconfig.go).
+	EOS any `mapstructure:"eos" json:"eos,omitempty" yaml:"eos,omitempty"`
 	// ViscosityPaS is recorded with the layer for rheology-aware observables.
 	ViscosityPaS any `mapstructure:"viscosity_pa_s" json:"viscosity_pa_s,omitempty" yaml:"viscosity_pa_s,omitempty"`
 }

@@ -32,6 +32,8 @@ type layerPlan struct {
 	liquid      bool // when fixed
 	viscosity   slot
 	hasVisc     bool
+	// eos, when set, replaces density/vp/vs: the layer is compressed by the hydrostatic pressure.
+	eos *eosPlan
 	// outerColumn is set when the top radius is derived (from thicknesses or the planet radius
 	// parameter) and recorded as a derived column.
 	outerColumn bool
@@ -54,6 +56,9 @@ type Problem struct {
 	derivedCol []string // names of derived outer-radius columns, in layer order
 	levels     []int
 	keys       []string // config key of each parameter, for messages
+	// hydro is set when some layer has an equation of state: the structure is then solved
+	// self-consistently (forward.SolveHydrostatic) instead of in closed form.
+	hydro bool
 }
 
 // Observation is one datum with its Gaussian error, SI units.
@@ -96,6 +101,7 @@ func Build(c *Config, file string) (*Problem, error) {
 	if err := p.planBoundaries(b); err != nil {
 		return nil, err
 	}
+	p.planHydro()
 	p.monotone = c.Constraints.DensityIncreasesWithDepth
 	if err := p.observations(b, c.Observations); err != nil {
 		return nil, err
@@ -135,6 +141,20 @@ func (b *builder) layer(key string, lc LayerConfig, top bool) (layerPlan, error)
 		lp.thickness = &s
 	}
 	var err error
+	if lc.EOS != nil {
+		for k, v := range map[string]any{"density_kg_m3": lc.DensityKgM3, "vp_km_s": lc.VpKmS, "vs_km_s": lc.VsKmS} {
+			if v != nil {
+				return lp, b.errf(key+"."+k, "a layer with an eos takes its density and velocities from it; remove %s", k)
+			}
+		}
+		if lp.eos, err = b.eos(key+".eos", lc.EOS, pre); err != nil {
+			return lp, err
+		}
+		if lp.viscosity, lp.hasVisc, err = b.quantity(key+".viscosity_pa_s", lc.ViscosityPaS, pre+"viscosity_pa_s", unitPaS, false); err != nil {
+			return lp, err
+		}
+		return lp, b.state(key, lc.State, pre, &lp)
+	}
 	if lp.density, _, err = b.property(key+".density_kg_m3", lc.DensityKgM3, pre, "density", unitKgM3, "kg_m3", true); err != nil {
 		return lp, err
 	}
@@ -391,28 +411,15 @@ func (p *Problem) NumDerived() int { return 2 + len(p.Observations) + len(p.deri
 // Model builds the forward model for x; ok is false when x violates a structural constraint
 // (radii not increasing, density decreasing with depth when that constraint is on).
 func (p *Problem) Model(x []float64) (forward.Model, bool) {
+	r, ok := p.radii(x)
+	if !ok {
+		return forward.Model{}, false
+	}
 	n := len(p.layers)
-	r := make([]float64, n+1)
-	r[n] = p.radius.at(x)
-	for i := n - 1; i >= 1; i-- {
-		if o := p.layers[i-1].outer; o != nil {
-			r[i] = o.at(x)
-		} else {
-			r[i] = r[i+1] - p.layers[i].thickness.at(x)
-		}
-	}
-	for i := 1; i <= n; i++ {
-		if !(r[i] > r[i-1]) {
-			return forward.Model{}, false
-		}
-	}
 	m := forward.Model{Layers: make([]forward.Layer, n)}
 	for i, lp := range p.layers {
 		in, out := r[i], r[i+1]
-		liquid := lp.liquid
-		if lp.stateParam >= 0 {
-			liquid = lp.stateLabels[int(x[lp.stateParam])] == StateLiquid
-		}
+		liquid := lp.isLiquid(x)
 		l := forward.Layer{
 			Name: lp.name, Inner: in, Outer: out,
 			Density: lp.density.poly(x, in, out),
@@ -435,11 +442,64 @@ func (p *Problem) Model(x []float64) (forward.Model, bool) {
 	return m, true
 }
 
+// radii returns the layer boundaries (m) from the centre to the surface; false when they do not
+// increase outward.
+func (p *Problem) radii(x []float64) ([]float64, bool) {
+	n := len(p.layers)
+	r := make([]float64, n+1)
+	r[n] = p.radius.at(x)
+	for i := n - 1; i >= 1; i-- {
+		if o := p.layers[i-1].outer; o != nil {
+			r[i] = o.at(x)
+		} else {
+			r[i] = r[i+1] - p.layers[i].thickness.at(x)
+		}
+	}
+	for i := 1; i <= n; i++ {
+		if !(r[i] > r[i-1]) {
+			return nil, false
+		}
+	}
+	return r, true
+}
+
+// isLiquid reports the layer's state at x.
+func (lp *layerPlan) isLiquid(x []float64) bool {
+	if lp.stateParam >= 0 {
+		return lp.stateLabels[int(x[lp.stateParam])] == StateLiquid
+	}
+	return lp.liquid
+}
+
 func (pr profile) poly(x []float64, in, out float64) forward.Poly {
 	if !pr.gradient {
 		return forward.Const(pr.inner.at(x))
 	}
 	return forward.Linear(in, pr.inner.at(x), out, pr.outer.at(x))
+}
+
+// solvedDensityMonotone checks a self-consistent structure at its layer boundaries (within an
+// EOS layer, compression already makes density increase with depth).
+func solvedDensityMonotone(st *forward.Structure, m forward.EOSModel) bool {
+	for _, l := range m.Layers[1:] {
+		r := l.Inner
+		below := st.Model.Layers[st.LayerAt(r, false)].Density.At(r)
+		above := st.Model.Layers[st.LayerAt(r, true)].Density.At(r)
+		if below < above {
+			return false
+		}
+	}
+	return true
+}
+
+// prescribedMonotone checks the gradients of the layers without an EOS.
+func prescribedMonotone(ls []layerPlan, x []float64) bool {
+	for _, l := range ls {
+		if l.eos == nil && l.density.inner.at(x) < l.density.outer.at(x) {
+			return false
+		}
+	}
+	return true
 }
 
 // densityMonotone: density does not decrease with depth — within each (linear) layer and across
@@ -463,6 +523,20 @@ var ErrConstraint = errors.New("structural constraint violated")
 // Solve builds the model for x and solves its structure. An error means x is not a physical
 // model (ErrConstraint, or the forward model's own error).
 func (p *Problem) Solve(x []float64) (*forward.Structure, error) {
+	if p.hydro {
+		m, err := p.hydroModel(x)
+		if err != nil {
+			return nil, err
+		}
+		st, _, err := forward.SolveHydrostatic(m, forward.SolveOptions{})
+		if err != nil {
+			return nil, err
+		}
+		if p.monotone && (!solvedDensityMonotone(st, m) || !prescribedMonotone(p.layers, x)) {
+			return nil, ErrConstraint
+		}
+		return st, nil
+	}
 	m, ok := p.Model(x)
 	if !ok {
 		return nil, ErrConstraint
@@ -494,9 +568,10 @@ func (p *Problem) LogDensity(x, derived []float64) float64 {
 	}
 	derived[0], derived[1] = lp, ll
 	k := 2 + len(p.Observations)
+	r, _ := p.radii(x) // valid: Solve succeeded
 	for i, l := range p.layers {
 		if l.outerColumn {
-			derived[k] = st.Boundary[i+1]
+			derived[k] = r[i+1]
 			k++
 		}
 	}
