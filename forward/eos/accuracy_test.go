@@ -2,6 +2,7 @@ package eos
 
 import (
 	"fmt"
+	"math"
 	"testing"
 )
 
@@ -75,5 +76,32 @@ func TestDensityAtInflection(t *testing.T) {
 			t.Fatal(err)
 		}
 		checkRel(t, fmt.Sprintf("p = %g", p), got, bisectDensity(b, p, 1.01*b.Rho0), 1e-14)
+	}
+}
+
+// A sweep over the accepted K0′ range and pressures up to each limit, against the bisection
+// reference: 1e-14 relative times the conditioning max(1, p/K) (both results carry the
+// rounding of P, ε·p, which moves ρ by ε·p/K), and the pressure residual everywhere.
+func TestDensitySweep(t *testing.T) {
+	for _, k0p := range []float64{0.05, 0.5, 1, 1.076, 5.0 / 3, 2, 3, 3.9, 3.999, 4, 5, 8, 12, 20} {
+		b, _ := NewBM3(3000, 100e9, k0p, Fluid())
+		v, _ := NewVinet(3000, 100e9, k0p, Fluid())
+		for _, e := range []EOS{b, v} {
+			pmax, _ := e.(interface{ MaxPressure() (float64, float64) }).MaxPressure()
+			for _, s := range []float64{1e-12, 1e-6, 1e-3, 0.01, 0.1, 0.3, 0.5, 0.7, 0.9, 0.99, 0.999999} {
+				p := s * pmax
+				name := fmt.Sprintf("%s K0′=%g p=%g", eosName(e), k0p, p)
+				got, err := e.Density(p)
+				if err != nil {
+					t.Errorf("%s: %v", name, err)
+					continue
+				}
+				want := bisectDensity(e, p, 1.01*e.ReferenceDensity())
+				if k := e.BulkModulus(want); k > 1e-3*p {
+					checkRel(t, name, got, want, 1e-14*math.Max(1, p/k))
+				}
+				checkResidual(t, name, e, got, p, 1e-14)
+			}
+		}
 	}
 }

@@ -80,6 +80,10 @@ func (b BM3) BulkModulus(rho float64) float64 {
 // ShearModulus returns μ(ρ) in Pa from b.Shear; NaN for a density that is not finite and positive.
 func (b BM3) ShearModulus(rho float64) float64 {
 	_, f := eulerian(rho, b.Rho0)
+	return b.shearF(f)
+}
+
+func (b BM3) shearF(f float64) float64 {
 	switch b.Shear.Kind {
 	case ShearLinear:
 		return b.Shear.Mu0 + b.Shear.Mu0p*b.pressureF(f)
@@ -87,6 +91,12 @@ func (b BM3) ShearModulus(rho float64) float64 {
 		return finiteStrainModulus(b.Shear.Mu0, b.Shear.Mu0p, b.K0, b.K0p, -1, f)
 	}
 	return 0 * f // 0, or NaN for an invalid density
+}
+
+// moduli returns K and μ at ρ with one cube root (the fast path of Velocities).
+func (b BM3) moduli(rho float64) (k, mu float64) {
+	_, f := eulerian(rho, b.Rho0)
+	return b.bulkF(f), b.shearF(f)
 }
 
 // turnoverU returns u = 1 + 2f* at the turnover, where K = 0, or +Inf when K0′ ≥ 4 (no

@@ -157,3 +157,26 @@ func TestNegativeShearIsAnError(t *testing.T) {
 		t.Errorf("negative μ: Velocities err = %v, want ErrModulus", err)
 	}
 }
+
+// Velocities (which evaluates K and μ together) agrees with the definitions
+// vp = √((K + 4μ/3)/ρ), vs = √(μ/ρ) (Poirier 2000, ch. 2) built from the public methods, for
+// both laws and hosts over compressions 1.0–2.5.
+func TestVelocitiesMatchModuli(t *testing.T) {
+	lin, _ := NewLinearShear(80e9, 1.4)
+	fs, _ := NewFiniteStrainShear(172.9e9, 1.69)
+	for _, sh := range []ShearLaw{lin, fs} {
+		for _, e := range shearHosts(t, sh) {
+			for _, eta := range compressions() {
+				rho := eta * e.ReferenceDensity()
+				vp, vs, err := Velocities(e, rho)
+				if err != nil {
+					t.Fatalf("%s %v at η=%.2f: %v", eosName(e), sh.Kind, eta, err)
+				}
+				k, mu := e.BulkModulus(rho), e.ShearModulus(rho)
+				name := fmt.Sprintf("%s %v η=%.2f", eosName(e), sh.Kind, eta)
+				checkRel(t, name+": vp", vp, math.Sqrt((k+4*mu/3)/rho), 1e-15)
+				checkRel(t, name+": vs", vs, math.Sqrt(mu/rho), 1e-15)
+			}
+		}
+	}
+}

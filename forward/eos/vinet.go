@@ -73,8 +73,9 @@ func (v Vinet) Pressure(rho float64) float64 { return v.pressureC(eulerian(rho, 
 func (v Vinet) BulkModulus(rho float64) float64 { return v.bulkC(eulerian(rho, v.Rho0)) }
 
 // ShearModulus returns μ(ρ) in Pa from v.Shear; NaN for a density that is not finite and positive.
-func (v Vinet) ShearModulus(rho float64) float64 {
-	c, f := eulerian(rho, v.Rho0)
+func (v Vinet) ShearModulus(rho float64) float64 { return v.shearC(eulerian(rho, v.Rho0)) }
+
+func (v Vinet) shearC(c, f float64) float64 {
 	switch v.Shear.Kind {
 	case ShearLinear:
 		return v.Shear.Mu0 + v.Shear.Mu0p*v.pressureC(c, f)
@@ -82,6 +83,12 @@ func (v Vinet) ShearModulus(rho float64) float64 {
 		return finiteStrainModulus(v.Shear.Mu0, v.Shear.Mu0p, v.K0, v.K0p, -1, f)
 	}
 	return 0 * f // 0, or NaN for an invalid density
+}
+
+// moduli returns K and μ at ρ with one cube root (the fast path of Velocities).
+func (v Vinet) moduli(rho float64) (k, mu float64) {
+	c, f := eulerian(rho, v.Rho0)
+	return v.bulkC(c, f), v.shearC(c, f)
 }
 
 // Density returns the ρ (kg/m³) with P(ρ) = p (Pa) for finite p ≥ 0. It iterates on
