@@ -44,10 +44,12 @@ func (k ShearKind) String() string {
 //	f = ½[(ρ/ρ0)^{2/3} − 1],
 //
 // with ρ0, K0 and K0′ taken from the host EOS (also for Vinet, whose pressure is not a
-// finite-strain form: a common pairing, no source). The same source gives every isotropic
+// finite-strain form: a common pairing, no source). The same source gives every elastic
 // modulus as c = (1+2f)^{5/2}[c0 + (3K0c0′ − 5c0)f + (6K0c0′ − 14c0 − (3/2)K0Δ(3K0′ − 16))f²]
-// with Δ = −1 for μ and Δ = −5/3 for K; the latter reproduces the analytic BM3 bulk modulus,
-// which the tests check.
+// (also from memory), with Δ the isotropic tensor −δijδkl − δilδjk − δjlδik, whose shear and
+// bulk parts are Δ = −1 for μ and Δ = −5/3 for K (our contraction). The K case must reproduce
+// the analytic BM3 bulk modulus derived from Birch's pressure, an independent check of the
+// recalled form that the tests make.
 //
 // The linear law uses the host's pressure; a negative Mu0p, or the f² term of the finite-strain
 // law at large compression, can make μ negative. ShearModulus returns such values unchanged and
