@@ -84,6 +84,12 @@ func TestEOSConfig(t *testing.T) {
 	if der[len(der)-1] != 4160e3 {
 		t.Errorf("derived mantle top %g m, want 4160e3", der[len(der)-1])
 	}
+	// A mantle so soft (K0 = 1 MPa, outside the prior, so Solve is called directly) that its own
+	// weight would compress it beyond the EOS's range is not a physical model: an error from the
+	// solver (LogDensity turns every Solve error into −Inf), no panic.
+	if st, err := p.Solve([]float64{2000e3, 7400, 1e6}); err == nil || errors.Is(err, ErrConstraint) {
+		t.Errorf("unsolvable model: structure %v, error %v; want a solver error", st != nil, err)
+	}
 	// A core lighter than the mantle violates the density constraint: prior zero, not a crash.
 	if _, err := p.Solve([]float64{2000e3, 3000, 130e9}); !errors.Is(err, ErrConstraint) {
 		t.Errorf("light core: %v, want ErrConstraint", err)
