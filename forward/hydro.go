@@ -57,21 +57,12 @@ func (m EOSModel) Validate() error {
 
 func (m EOSModel) validateLayer(i int) error {
 	l := &m.Layers[i]
-	if !finite(l.Inner) || !finite(l.Outer) {
-		return fmt.Errorf("radii must be finite, got inner %g m, outer %g m", l.Inner, l.Outer)
+	below := 0.0
+	if i > 0 {
+		below = m.Layers[i-1].Outer
 	}
-	if i == 0 && l.Inner != 0 {
-		return fmt.Errorf("innermost layer must start at r = 0, starts at %g m", l.Inner)
-	}
-	if i > 0 && l.Inner != m.Layers[i-1].Outer {
-		return fmt.Errorf("inner radius %g m does not match outer radius %g m of the layer below",
-			l.Inner, m.Layers[i-1].Outer)
-	}
-	if !(l.Inner < l.Outer) {
-		return fmt.Errorf("inner radius %g m must be less than outer radius %g m", l.Inner, l.Outer)
-	}
-	if !finite(l.Viscosity) || l.Viscosity < 0 {
-		return fmt.Errorf("viscosity must be finite and ≥ 0, got %g Pa s", l.Viscosity)
+	if err := checkShell(i, l.Inner, l.Outer, below, l.Viscosity); err != nil {
+		return err
 	}
 	if l.Density != nil {
 		if l.Vp == nil {

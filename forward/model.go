@@ -51,21 +51,12 @@ func (m Model) Validate() error {
 
 func (m Model) validateLayer(i int) error {
 	l := &m.Layers[i]
-	if !finite(l.Inner) || !finite(l.Outer) {
-		return fmt.Errorf("radii must be finite, got inner %g m, outer %g m", l.Inner, l.Outer)
+	below := 0.0
+	if i > 0 {
+		below = m.Layers[i-1].Outer
 	}
-	if i == 0 && l.Inner != 0 {
-		return fmt.Errorf("innermost layer must start at r = 0, starts at %g m", l.Inner)
-	}
-	if i > 0 && l.Inner != m.Layers[i-1].Outer {
-		return fmt.Errorf("inner radius %g m does not match outer radius %g m of the layer below",
-			l.Inner, m.Layers[i-1].Outer)
-	}
-	if !(l.Inner < l.Outer) {
-		return fmt.Errorf("inner radius %g m must be less than outer radius %g m", l.Inner, l.Outer)
-	}
-	if !finite(l.Viscosity) || l.Viscosity < 0 {
-		return fmt.Errorf("viscosity must be finite and ≥ 0, got %g Pa s", l.Viscosity)
+	if err := checkShell(i, l.Inner, l.Outer, below, l.Viscosity); err != nil {
+		return err
 	}
 	if err := checkPoly(l.Density, l.Inner, l.Outer, "density", "kg/m³", false); err != nil {
 		return err
@@ -110,3 +101,24 @@ func checkPoly(p Poly, lo, hi float64, what, unit string, zeroOK bool) error {
 }
 
 func finite(v float64) bool { return !math.IsNaN(v) && !math.IsInf(v, 0) }
+
+// checkShell checks the geometry of layer i, Inner ≤ r ≤ Outer, whose layer below ends at below
+// (ignored for i = 0), and its viscosity: shared by Model and EOSModel.
+func checkShell(i int, inner, outer, below, viscosity float64) error {
+	if !finite(inner) || !finite(outer) {
+		return fmt.Errorf("radii must be finite, got inner %g m, outer %g m", inner, outer)
+	}
+	if i == 0 && inner != 0 {
+		return fmt.Errorf("innermost layer must start at r = 0, starts at %g m", inner)
+	}
+	if i > 0 && inner != below {
+		return fmt.Errorf("inner radius %g m does not match outer radius %g m of the layer below", inner, below)
+	}
+	if !(inner < outer) {
+		return fmt.Errorf("inner radius %g m must be less than outer radius %g m", inner, outer)
+	}
+	if !finite(viscosity) || viscosity < 0 {
+		return fmt.Errorf("viscosity must be finite and ≥ 0, got %g Pa s", viscosity)
+	}
+	return nil
+}

@@ -1,7 +1,6 @@
 package inversion
 
 import (
-	"os"
 	"path/filepath"
 	"testing"
 )
@@ -27,13 +26,4 @@ func BenchmarkLogDensity(b *testing.B) {
 	for b.Loop() {
 		p.LogDensity(x, der)
 	}
-}
-
-func writeConfigB(b *testing.B, text string) string {
-	b.Helper()
-	path := filepath.Join(b.TempDir(), "c.yaml")
-	if err := os.WriteFile(path, []byte(text), 0o644); err != nil {
-		b.Fatal(err)
-	}
-	return path
 }

@@ -42,13 +42,28 @@ output:
   checkpoint_every_steps: 100
 `
 
-func writeConfig(t *testing.T, name, text string) string {
+func writeConfig(t testing.TB, name, text string) string {
 	t.Helper()
 	path := filepath.Join(t.TempDir(), name)
 	if err := os.WriteFile(path, []byte(text), 0o644); err != nil {
 		t.Fatal(err)
 	}
 	return path
+}
+
+// buildConfig writes, loads and builds a config text.
+func buildConfig(t testing.TB, text string) *Problem {
+	t.Helper()
+	path := writeConfig(t, "c.yaml", text)
+	cfg, err := Load(path, nil)
+	if err != nil {
+		t.Fatal(err)
+	}
+	p, err := Build(cfg, path)
+	if err != nil {
+		t.Fatal(err)
+	}
+	return p
 }
 
 func TestBuildValid(t *testing.T) {

@@ -38,15 +38,7 @@ sampler: {chains: 2, warmup_steps: 50, steps: 100, thin: 1, seed: 2}
 // An EOS config solves to exactly the structure forward.SolveHydrostatic gives for the same
 // layers built by hand (the physics itself is checked in forward and forward/eos).
 func TestEOSConfig(t *testing.T) {
-	path := writeConfig(t, "eos.yaml", eosConfig)
-	cfg, err := Load(path, nil)
-	if err != nil {
-		t.Fatal(err)
-	}
-	p, err := Build(cfg, path)
-	if err != nil {
-		t.Fatal(err)
-	}
+	p := buildConfig(t, eosConfig)
 	want := []string{"core_outer_radius_km", "core_rho0_kg_m3", "mantle_k0_gpa"}
 	if strings.Join(p.Space.Names(), ",") != strings.Join(want, ",") {
 		t.Fatalf("parameters %v, want %v", p.Space.Names(), want)
@@ -125,15 +117,7 @@ func TestEOSConfigErrors(t *testing.T) {
 
 // BenchmarkLogDensityEOS times one posterior evaluation with a self-consistent 3-layer solve.
 func BenchmarkLogDensityEOS(b *testing.B) {
-	path := writeConfigB(b, eosConfig)
-	cfg, err := Load(path, nil)
-	if err != nil {
-		b.Fatal(err)
-	}
-	p, err := Build(cfg, path)
-	if err != nil {
-		b.Fatal(err)
-	}
+	p := buildConfig(b, eosConfig)
 	x := []float64{2000e3, 7400, 130e9}
 	der := make([]float64, p.NumDerived())
 	b.ReportAllocs()
