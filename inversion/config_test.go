@@ -67,15 +67,7 @@ func buildConfig(t testing.TB, text string) *Problem {
 }
 
 func TestBuildValid(t *testing.T) {
-	path := writeConfig(t, "c.yaml", testConfig)
-	cfg, err := Load(path, nil)
-	if err != nil {
-		t.Fatal(err)
-	}
-	p, err := Build(cfg, path)
-	if err != nil {
-		t.Fatal(err)
-	}
+	p := buildConfig(t, testConfig)
 	want := []string{"core_outer_radius_km", "core_density_kg_m3", "core_state", "mantle_density_inner_kg_m3", "crust_thickness_km"}
 	var got []string
 	for _, par := range p.Space.Params {
