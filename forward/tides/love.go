@@ -1,0 +1,403 @@
+// Package tides computes the static tidal response of a layered, spherically
+// symmetric, self-gravitating, compressible elastic body.
+package tides
+
+import (
+	"fmt"
+	"math"
+
+	"plumb/forward"
+	"plumb/forward/internal/ode"
+)
+
+// DefaultTol is the relative and absolute tolerance of the radial
+// integration used by Love (in the dimensionless variables described below).
+const DefaultTol = 1e-8
+
+// The equations. Let u = U(r) Y r̂ + V(r) r∇Y be the displacement of degree
+// n (L = n(n+1)), P(r) Y the Eulerian perturbation of the gravitational
+// potential V (sign such that the body force per unit mass is +∇V, so that the
+// unperturbed potential has dV₀/dr = −g), and τ = λ(∇·u)I + μ(∇u + ∇uᵀ) the
+// incremental Lagrangian stress. Static equilibrium with hydrostatic
+// prestress, ∇·τ − ∇(ρ g U) + g ∇·(ρu) r̂ + ρ∇P = 0, and Poisson's
+// equation ∇²P = 4πG ∇·(ρu) (Love 1911, Some Problems of Geodynamics, ch. VII;
+// Takeuchi & Saito 1972, Methods in Computational Physics 11, 217–295, in the
+// limit ω → 0) give, with
+//
+//	y1 = U, y2 = λX + 2μ U' (X = ∇·u = U' + (2U − L V)/r), y3 = V,
+//	y4 = μ(V' − V/r + U/r), y5 = P, y6 = P' − 4πGρ U + (n+1) P/r
+//
+// (y6 as in Saito 1974, J. Phys. Earth 22, 123–140; it is continuous across
+// density jumps), β = λ + 2μ and γ = μ(3λ + 2μ)/β:
+//
+//	y1' = (−2λ y1/r + y2 + Lλ y3/r)/β
+//	y2' = (4γ/r² − 4ρg/r) y1 − 4μ/(βr) y2 + (Lρg/r − 2Lγ/r²) y3 + L y4/r + (n+1)ρ y5/r − ρ y6
+//	y3' = −y1/r + y3/r + y4/μ
+//	y4' = (ρg/r − 2γ/r²) y1 − λ/(βr) y2 + ((γ+μ)L − 2μ)/r² y3 − 3 y4/r − ρ y5/r
+//	y5' = 4πGρ y1 − (n+1) y5/r + y6
+//	y6' = 4πGρ(n+1) y1/r − 4πGρL y3/r + (n−1) y6/r
+//
+// In a static fluid (μ = 0) the tangential equation forces y2 = ρ(g y1 − y5)
+// and the displacement follows the equipotentials, y1 = y5/g, so that only
+// the potential remains (Saito 1974):
+//
+//	y5' = (4πGρ/g − (n+1)/r) y5 + y6
+//	y6' = 2(n−1)/r · 4πGρ/g · y5 + ((n−1)/r − 4πGρ/g) y6.
+//
+// At a boundary between fluid (density ρf) and solid, y1 (the solid's normal
+// displacement), y2, y5 and the y6 built with that y1 are continuous, y4 = 0
+// and y3 may slip. With the fluid's y5 and y6f (built with y5/g) this gives
+//
+//	y2 = ρf (g y1 − y5),   y6 = y6f + 4πGρf (y5/g − y1).
+//
+// A solid above a fluid therefore starts from the three solutions
+// (y5/g, 0, 0, 0, y5, y6f), (1, ρf g, 0, 0, 0, −4πGρf) and (0, 0, 1, 0, 0, 0);
+// a fluid above a solid starts from the combination of the three solid
+// solutions with y4 = 0 and y2 = ρf(g y1 − y5).
+//
+// Surface (r = R) with the tidal potential W = (r/R)ⁿ (unit at the surface):
+// y2 = y4 = 0 and y6 = (2n+1)/R · W(R); then k = y5(R)/W − 1, h = g y1(R)/W,
+// l = g y3(R)/W. A fluid surface needs y2 = 0, i.e. y1 = y5/g, and y6f = (2n+1)/R.
+//
+// The integration uses the dimensionless radius x = r/R, density ρ/ρ̄ (ρ̄ the
+// mean density), gravity g/g₀ (g₀ = GM/R²), stresses in units of ρ̄ g₀ R and
+// potentials in units of g₀ R; then 4πGρ becomes 3ρ/ρ̄ (since 4πGρ̄R = 3g₀).
+//
+// Regular solutions near the centre of a solid (homogeneous-sphere solutions,
+// Love 1911, ch. VII): u = ∇(rⁿY), u = A r²∇(rⁿY) + r rⁿY r̂ with
+// A = −(2μ + (λ+μ)(n+3))/((4n+2)μ + 2n(λ+μ)), and the one forced by the
+// potential P = rⁿ, u = A' r²∇(rⁿY) with A' = −ρ/((4n+2)μ + 2n(λ+μ)). In a
+// fluid centre, y5 = rⁿ and y6 = 2(n−1) rⁿ⁻¹ (exact for uniform density).
+
+// Love returns the degree-n (n ≥ 2) static elastic Love numbers k, h and l of
+// the solved structure s, integrating at tolerance DefaultTol. If the
+// outermost layer is fluid the tangential displacement is undetermined in
+// the static limit and l is returned as NaN (k and h are still valid).
+func Love(s *forward.Structure, n int) (k, h, l float64, err error) {
+	return LoveTol(s, n, DefaultTol)
+}
+
+// LoveTol is Love with the integration tolerance tol (relative and absolute,
+// in the dimensionless variables), 0 < tol < 1e-2.
+func LoveTol(s *forward.Structure, n int, tol float64) (k, h, l float64, err error) {
+	nan := math.NaN()
+	if s == nil || len(s.Model.Layers) == 0 {
+		return nan, nan, nan, fmt.Errorf("tides: no structure")
+	}
+	if n < 2 || n > 100 {
+		return nan, nan, nan, fmt.Errorf("tides: degree must be 2 ≤ n ≤ 100, got %d", n)
+	}
+	if !(tol > 0 && tol < 1e-2) {
+		return nan, nan, nan, fmt.Errorf("tides: tolerance must be in (0, 1e-2), got %g", tol)
+	}
+	if err := checkModuli(s); err != nil {
+		return nan, nan, nan, fmt.Errorf("tides: %w", err)
+	}
+	c, err := newCalc(s, n, tol)
+	if err != nil {
+		return nan, nan, nan, err
+	}
+	return c.run()
+}
+
+// checkModuli checks that every solid layer has μ > 0 and a bulk modulus
+// K = ρ(vp² − 4vs²/3) > 0 at its ends and at interior sample points (the
+// right-hand side checks again at every point it uses).
+func checkModuli(s *forward.Structure) error {
+	const samples = 16
+	for i := range s.Model.Layers {
+		l := &s.Model.Layers[i]
+		if l.Fluid {
+			continue
+		}
+		for j := 0; j <= samples; j++ {
+			r := l.Inner + (l.Outer-l.Inner)*float64(j)/samples
+			if j == samples {
+				r = l.Outer
+			}
+			vp, vs := l.Vp.At(r), l.Vs.At(r)
+			if !(vs > 0) || !(vp*vp > 4*vs*vs/3) {
+				return fmt.Errorf("solid layer %d (%q) at r = %g m: vs = %g m/s, vp = %g m/s; need vs > 0 and vp² > 4vs²/3",
+					i, l.Name, r, vs, vp)
+			}
+		}
+	}
+	return nil
+}
+
+type calc struct {
+	st     *forward.Structure
+	n      int
+	L, fn  float64
+	R      float64 // m
+	rhoBar float64 // kg/m³
+	g0     float64 // m/s²
+	S      float64 // stress unit ρ̄ g₀ R (Pa)
+	layer  *forward.Layer
+	solid  *ode.Solver // 18 components: three 6-vectors
+	fluid  *ode.Solver // 2 components
+	y      [18]float64
+	yf     [2]float64
+	fSolid ode.Func
+	fFluid ode.Func
+	bad    error // first non-physical coefficient met by a right-hand side
+}
+
+func newCalc(s *forward.Structure, n int, tol float64) (*calc, error) {
+	c := &calc{st: s, n: n, fn: float64(n), L: float64(n * (n + 1)), R: s.Radius()}
+	c.rhoBar = s.MeanDensity()
+	c.g0 = s.SurfaceGravity()
+	c.S = c.rhoBar * c.g0 * c.R
+	if !(c.R > 0) || !(c.S > 0) || math.IsInf(c.S, 0) {
+		return nil, fmt.Errorf("tides: structure has radius %g m, surface gravity %g m/s²", c.R, c.g0)
+	}
+	var err error
+	if c.solid, err = ode.NewSolver(18, tol, tol); err != nil {
+		return nil, err
+	}
+	if c.fluid, err = ode.NewSolver(2, tol, tol); err != nil {
+		return nil, err
+	}
+	c.fSolid = c.derivSolid
+	c.fFluid = c.derivFluid
+	return c, nil
+}
+
+// params returns the dimensionless ρ, g, λ, μ at x in the current layer.
+func (c *calc) params(x float64) (rho, g, lam, mu float64) {
+	r := x * c.R
+	l := c.layer
+	d := l.Density.At(r)
+	rho = d / c.rhoBar
+	g = c.st.Gravity(r) / c.g0
+	if l.Fluid {
+		return rho, g, 0, 0
+	}
+	vp, vs := l.Vp.At(r), l.Vs.At(r)
+	mu = d * vs * vs / c.S
+	lam = d * (vp*vp - 2*vs*vs) / c.S
+	if !(mu > 0) || !(lam+2*mu/3 > 0) {
+		if c.bad == nil {
+			c.bad = fmt.Errorf("layer %q at r = %g m: shear modulus %g Pa and bulk modulus %g Pa must be > 0",
+				l.Name, r, mu*c.S, (lam+2*mu/3)*c.S)
+		}
+		mu, lam = math.NaN(), math.NaN()
+	}
+	return rho, g, lam, mu
+}
+
+func (c *calc) derivSolid(x float64, y, dy []float64) {
+	rho, g, lam, mu := c.params(x)
+	n, L := c.fn, c.L
+	beta := lam + 2*mu
+	gam := mu * (3*lam + 2*mu) / beta
+	ix := 1 / x
+	ix2 := ix * ix
+	a11, a12, a13 := -2*lam*ix/beta, 1/beta, L*lam*ix/beta
+	a21, a22, a23 := 4*gam*ix2-4*rho*g*ix, -4*mu*ix/beta, L*rho*g*ix-2*L*gam*ix2
+	a24, a25, a26 := L*ix, (n+1)*rho*ix, -rho
+	a41, a42, a43 := rho*g*ix-2*gam*ix2, -lam*ix/beta, ((gam+mu)*L-2*mu)*ix2
+	a44, a45 := -3*ix, -rho*ix
+	g3 := 3 * rho
+	for j := 0; j < 18; j += 6 {
+		y1, y2, y3, y4, y5, y6 := y[j], y[j+1], y[j+2], y[j+3], y[j+4], y[j+5]
+		dy[j] = a11*y1 + a12*y2 + a13*y3
+		dy[j+1] = a21*y1 + a22*y2 + a23*y3 + a24*y4 + a25*y5 + a26*y6
+		dy[j+2] = (y3-y1)*ix + y4/mu
+		dy[j+3] = a41*y1 + a42*y2 + a43*y3 + a44*y4 + a45*y5
+		dy[j+4] = g3*y1 - (n+1)*ix*y5 + y6
+		dy[j+5] = g3*((n+1)*y1-L*y3)*ix + (n-1)*ix*y6
+	}
+}
+
+func (c *calc) derivFluid(x float64, y, dy []float64) {
+	rho, g, _, _ := c.params(x)
+	n := c.fn
+	q := 3 * rho / g
+	dy[0] = (q-(n+1)/x)*y[0] + y[1]
+	dy[1] = 2*(n-1)/x*q*y[0] + ((n-1)/x-q)*y[1]
+}
+
+func (c *calc) run() (k, h, l float64, err error) {
+	nan := math.NaN()
+	layers := c.st.Model.Layers
+	n := c.fn
+	// Start radius: regular solutions grow like x^(n−1) and the irregular ones
+	// decay outwards like x^−(n+2), so a start at x0 with leading-order
+	// solutions leaves a relative contamination of order x0^(2n+1).
+	x1 := layers[0].Outer / c.R
+	x0 := math.Min(0.1*x1, math.Pow(1e-3, 2/n))
+	c.layer = &layers[0]
+	if layers[0].Fluid {
+		c.yf = [2]float64{math.Pow(x0, n), 2 * (n - 1) * math.Pow(x0, n-1)}
+	} else {
+		c.startSolid(x0)
+	}
+	x := x0
+	for i := range layers {
+		c.layer = &layers[i]
+		xb := layers[i].Outer / c.R
+		if i == len(layers)-1 {
+			xb = 1
+		}
+		if i > 0 {
+			prev := layers[i-1].Fluid
+			switch {
+			case prev && !layers[i].Fluid:
+				c.fluidToSolid(x, &layers[i-1])
+			case !prev && layers[i].Fluid:
+				if err := c.solidToFluid(x); err != nil {
+					return nan, nan, nan, fmt.Errorf("tides: layer %d (%q): %w", i, layers[i].Name, err)
+				}
+			}
+		}
+		var ierr error
+		if layers[i].Fluid {
+			ierr = c.fluid.Integrate(c.fFluid, x, xb, c.yf[:])
+		} else {
+			ierr = c.solid.Integrate(c.fSolid, x, xb, c.y[:])
+		}
+		if c.bad != nil {
+			return nan, nan, nan, fmt.Errorf("tides: layer %d: %w", i, c.bad)
+		}
+		if ierr != nil {
+			return nan, nan, nan, fmt.Errorf("tides: layer %d (%q): %w", i, layers[i].Name, ierr)
+		}
+		x = xb
+	}
+	// W(R) = 1 in units of g₀R; g(R) = g₀.
+	if layers[len(layers)-1].Fluid {
+		y5 := (2*n + 1) / c.yf[1] * c.yf[0]
+		k, h, l = y5-1, y5, nan
+	} else {
+		// Solve Σ_j c_j (y2, y4, y6)_j = (0, 0, 2n+1).
+		var a [3][3]float64
+		for j := range 3 {
+			a[0][j], a[1][j], a[2][j] = c.y[6*j+1], c.y[6*j+3], c.y[6*j+5]
+		}
+		cf, ok := solve3(a, [3]float64{0, 0, 2*n + 1})
+		if !ok {
+			return nan, nan, nan, fmt.Errorf("tides: surface boundary conditions are singular")
+		}
+		var y1, y3, y5 float64
+		for j := range 3 {
+			y1 += cf[j] * c.y[6*j]
+			y3 += cf[j] * c.y[6*j+2]
+			y5 += cf[j] * c.y[6*j+4]
+		}
+		k, h, l = y5-1, y1, y3
+	}
+	if math.IsNaN(k) || math.IsInf(k, 0) || math.IsNaN(h) || math.IsInf(h, 0) {
+		return nan, nan, nan, fmt.Errorf("tides: Love numbers not finite (k = %g, h = %g)", k, h)
+	}
+	return k, h, l, nil
+}
+
+// startSolid sets the three regular solid solutions at x0 (see the package
+// comment), in the dimensionless variables.
+func (c *calc) startSolid(x0 float64) {
+	rho, _, lam, mu := c.params(x0)
+	n, L := c.fn, c.L
+	den := (4*n+2)*mu + 2*n*(lam+mu)
+	// fill writes U = u0 x^p, V = v0 x^p with the stresses of a homogeneous
+	// medium, and P = p0 x^n, into solution j.
+	fill := func(j int, p, u0, v0, p0 float64) {
+		xp := math.Pow(x0, p)
+		xp1 := math.Pow(x0, p-1)
+		U, V := u0*xp, v0*xp
+		y := c.y[6*j : 6*j+6]
+		y[0] = U
+		y[1] = (lam*((p+2)*u0-L*v0) + 2*mu*p*u0) * xp1
+		y[2] = V
+		y[3] = mu * ((p-1)*v0 + u0) * xp1
+		P := p0 * math.Pow(x0, n)
+		y[4] = P
+		y[5] = p0*(2*n+1)*math.Pow(x0, n-1) - 3*rho*U
+	}
+	fill(0, n-1, n, 1, 0)
+	A := -(2*mu + (lam+mu)*(n+3)) / den
+	fill(1, n+1, n*A+1, A, 0)
+	Ap := -rho / den
+	fill(2, n+1, n*Ap, Ap, 1)
+	if c.bad != nil {
+		for i := range c.y {
+			c.y[i] = math.NaN()
+		}
+	}
+}
+
+// fluidToSolid replaces the solution of the fluid layer below, which ends at
+// x, by the three solid starting solutions (see the package comment).
+func (c *calc) fluidToSolid(x float64, below *forward.Layer) {
+	r := x * c.R
+	rhoF := below.Density.At(r) / c.rhoBar
+	g := c.st.Gravity(r) / c.g0
+	s := 1 / math.Max(math.Abs(c.yf[0]), math.Abs(c.yf[1]))
+	y5, y6 := s*c.yf[0], s*c.yf[1]
+	c.y = [18]float64{
+		y5 / g, 0, 0, 0, y5, y6,
+		1, rhoF * g, 0, 0, 0, -3 * rhoF,
+		0, 0, 1, 0, 0, 0,
+	}
+}
+
+// solidToFluid combines the three solid solutions at x into the single
+// fluid solution (see the package comment).
+func (c *calc) solidToFluid(x float64) error {
+	r := x * c.R
+	rhoF := c.layer.Density.At(r) / c.rhoBar
+	g := c.st.Gravity(r) / c.g0
+	var a, b [3]float64
+	for j := range 3 {
+		y := c.y[6*j : 6*j+6]
+		a[j] = y[3]
+		b[j] = y[1] - rhoF*(g*y[0]-y[4])
+	}
+	// Null vector of the 2×3 system: the cross product of its rows.
+	cf := [3]float64{a[1]*b[2] - a[2]*b[1], a[2]*b[0] - a[0]*b[2], a[0]*b[1] - a[1]*b[0]}
+	var y5, y6 float64
+	for j := range 3 {
+		y := c.y[6*j : 6*j+6]
+		y5 += cf[j] * y[4]
+		y6 += cf[j] * (y[5] - 3*rhoF*(y[4]/g-y[0]))
+	}
+	m := math.Max(math.Abs(y5), math.Abs(y6))
+	if !(m > 0) || math.IsInf(m, 0) {
+		return fmt.Errorf("solid–fluid boundary at r = %g m: degenerate interface conditions", r)
+	}
+	c.yf = [2]float64{y5 / m, y6 / m}
+	return nil
+}
+
+// solve3 solves a·c = b by Gaussian elimination with partial pivoting.
+func solve3(a [3][3]float64, b [3]float64) ([3]float64, bool) {
+	for col := range 3 {
+		p := col
+		for r := col + 1; r < 3; r++ {
+			if math.Abs(a[r][col]) > math.Abs(a[p][col]) {
+				p = r
+			}
+		}
+		if a[p][col] == 0 {
+			return [3]float64{}, false
+		}
+		a[col], a[p] = a[p], a[col]
+		b[col], b[p] = b[p], b[col]
+		for r := col + 1; r < 3; r++ {
+			f := a[r][col] / a[col][col]
+			for k := col; k < 3; k++ {
+				a[r][k] -= f * a[col][k]
+			}
+			b[r] -= f * b[col]
+		}
+	}
+	var x [3]float64
+	for r := 2; r >= 0; r-- {
+		s := b[r]
+		for k := r + 1; k < 3; k++ {
+			s -= a[r][k] * x[k]
+		}
+		x[r] = s / a[r][r]
+	}
+	return x, true
+}
