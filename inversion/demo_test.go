@@ -7,7 +7,8 @@ import (
 )
 
 // The demo (runs/demo/config.yaml, with its stated truth in runs/demo/README.md) must recover its
-// truth: the core radius of the truth model, 2050 km, lies inside the 90 % credible interval, and
+// truth: the core radius of the truth model, 2050 km, lies inside the 90 % credible interval, the
+// liquid core is recognised, and
 // the chains have converged (rank-normalized split-R̂ < 1.01, bulk-ESS > 400; the R̂ threshold
 // follows Vehtari et al. 2021, the ESS one is common practice, no source).
 func TestDemoRecoversTruth(t *testing.T) {
@@ -45,5 +46,10 @@ func TestDemoRecoversTruth(t *testing.T) {
 	}
 	if !found {
 		t.Fatal("no core_outer_radius_km in the summary")
+	}
+	// The truth core is liquid, and k2 (0.173 ± 0.01; a solid core of the same size gives 0.096)
+	// must say so.
+	if len(s.Categorical) != 1 || !(s.Categorical[0].Probability[StateLiquid] > 0.95) {
+		t.Errorf("core state posterior %+v, want P(liquid) > 0.95", s.Categorical)
 	}
 }

@@ -164,3 +164,23 @@ func (p *Problem) planHydro() {
 		p.hydro = p.hydro || l.eos != nil
 	}
 }
+
+// checkShear: tidal observables need the rigidity of every layer that can be solid, so an EOS
+// layer that can be solid must then have a shear law (without one its μ would be 0 and every
+// solid model would be rejected, silently biasing the state posterior).
+func (p *Problem) checkShear(b *builder) error {
+	tidal := false
+	for _, o := range p.Observations {
+		tidal = tidal || o.Observable.Key == "k2" || o.Observable.Key == "h2"
+	}
+	if !tidal {
+		return nil
+	}
+	for i, l := range p.layers {
+		canBeSolid := !l.liquid || l.stateParam >= 0
+		if l.eos != nil && l.eos.shear == "" && canBeSolid {
+			return b.errf(fmt.Sprintf("layers[%d].eos.shear", i), "missing: layer %q can be solid and k2/h2 are observed, so it needs a shear law", l.name)
+		}
+	}
+	return nil
+}

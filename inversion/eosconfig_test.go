@@ -8,6 +8,7 @@ import (
 
 	"plumb/forward"
 	"plumb/forward/eos"
+	"plumb/forward/tides"
 )
 
 const eosConfig = `planet: {name: Testa, radius_km: 4200}
@@ -32,6 +33,7 @@ constraints: {density_increases_with_depth: true}
 observations:
   mass_kg: {value: 1.2e24, sigma: 1.2e21}
   moi_factor: {value: 0.36, sigma: 0.003}
+  k2: {value: 0.2, sigma: 0.02}
 sampler: {chains: 2, warmup_steps: 50, steps: 100, thin: 1, seed: 2}
 `
 
@@ -73,6 +75,14 @@ func TestEOSConfig(t *testing.T) {
 	if lp := p.LogDensity(x, der); math.IsInf(lp, 0) || math.IsNaN(lp) {
 		t.Errorf("log density %g", lp)
 	}
+	// The recorded k2 prediction is the tidal model's value for this structure.
+	k2, _, _, err := tides.Love(ref, 2)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if got := der[2+2]; got != k2 {
+		t.Errorf("pred k2 %g, tides.Love %g", got, k2)
+	}
 	if der[len(der)-1] != 4160e3 {
 		t.Errorf("derived mantle top %g m, want 4160e3", der[len(der)-1])
 	}
@@ -95,6 +105,7 @@ func TestEOSConfigErrors(t *testing.T) {
 		{"unknown eos key", "k0_prime: 5.4}", "k0_prime: 5.4, t0_k: 300}", `"t0_k"`},
 		{"unknown shear law", "law: finite_strain", "law: elastic", "layers[1].eos.shear.law"},
 		{"missing k0", "k0_gpa: 160, ", "", "layers[0].eos.k0_gpa"},
+		{"k2 without shear for a core that can be solid", "    state: liquid\n", "    state: {prior: categorical, values: [liquid, solid]}\n", "layers[0].eos.shear"},
 	}
 	for _, tc := range cases {
 		t.Run(tc.name, func(t *testing.T) {

@@ -1,6 +1,12 @@
 package inversion
 
-import "plumb/forward"
+import (
+	"fmt"
+	"math"
+
+	"plumb/forward"
+	"plumb/forward/tides"
+)
 
 // Observable is a quantity predicted from a solved structure and compared with a measurement.
 // Key is the config key and column stem, with its unit in the name; values inside the code are SI.
@@ -9,23 +15,62 @@ type Observable struct {
 	Key string
 	// Unit labels the input/output unit.
 	Unit string
-	// Eval predicts the value (SI) from a solved structure.
-	Eval func(*forward.Structure) float64
 
 	toSI float64
+	eval func(*evaluation) (float64, error)
 }
 
 // ToSI is the factor from the key's unit to SI.
 func (o Observable) ToSI() float64 { return o.toSI }
 
+// Predict computes the observable (SI) for a solved structure.
+func (o Observable) Predict(st *forward.Structure) (float64, error) {
+	return o.eval(&evaluation{st: st})
+}
+
+// evaluation is one model's structure with the results that several observables share (the
+// Love numbers serve k2 and h2), computed at most once.
+type evaluation struct {
+	st      *forward.Structure
+	love    [3]float64
+	loveErr error
+	loveOK  bool
+}
+
+// love2 returns the degree-2 elastic Love numbers k, h, l.
+func (e *evaluation) love2() ([3]float64, error) {
+	if !e.loveOK {
+		k, h, l, err := tides.Love(e.st, 2)
+		e.love, e.loveErr, e.loveOK = [3]float64{k, h, l}, err, true
+	}
+	return e.love, e.loveErr
+}
+
+func bulk(f func(*forward.Structure) float64) func(*evaluation) (float64, error) {
+	return func(e *evaluation) (float64, error) { return f(e.st), nil }
+}
+
+func loveNumber(i int, name string) func(*evaluation) (float64, error) {
+	return func(e *evaluation) (float64, error) {
+		l, err := e.love2()
+		if err != nil {
+			return math.NaN(), fmt.Errorf("%s: %w", name, err)
+		}
+		return l[i], nil
+	}
+}
+
 // Observables lists every observable plumb can invert, in likelihood order. To add one, append it
 // here (see DEVELOPERS.md).
 func Observables() []Observable {
 	return []Observable{
-		{Key: "mass_kg", Unit: "kg", toSI: 1, Eval: func(s *forward.Structure) float64 { return s.Mass }},
-		{Key: "moi_factor", Unit: "", toSI: 1, Eval: (*forward.Structure).MoIFactor},
-		{Key: "mean_density_kg_m3", Unit: "kg/m3", toSI: 1, Eval: (*forward.Structure).MeanDensity},
-		{Key: "surface_gravity_m_s2", Unit: "m/s2", toSI: 1, Eval: (*forward.Structure).SurfaceGravity},
-		{Key: "radius_km", Unit: "km", toSI: 1e3, Eval: (*forward.Structure).Radius},
+		{Key: "mass_kg", Unit: "kg", toSI: 1, eval: bulk(func(s *forward.Structure) float64 { return s.Mass })},
+		{Key: "moi_factor", Unit: "", toSI: 1, eval: bulk((*forward.Structure).MoIFactor)},
+		{Key: "mean_density_kg_m3", Unit: "kg/m3", toSI: 1, eval: bulk((*forward.Structure).MeanDensity)},
+		{Key: "surface_gravity_m_s2", Unit: "m/s2", toSI: 1, eval: bulk((*forward.Structure).SurfaceGravity)},
+		{Key: "radius_km", Unit: "km", toSI: 1e3, eval: bulk((*forward.Structure).Radius)},
+		// Degree-2 elastic (static) tidal Love numbers.
+		{Key: "k2", Unit: "", toSI: 1, eval: loveNumber(0, "k2")},
+		{Key: "h2", Unit: "", toSI: 1, eval: loveNumber(1, "h2")},
 	}
 }

@@ -106,6 +106,9 @@ func Build(c *Config, file string) (*Problem, error) {
 	if err := p.observations(b, c.Observations); err != nil {
 		return nil, err
 	}
+	if err := p.checkShear(b); err != nil {
+		return nil, err
+	}
 	p.Space, p.keys = b.space, b.keys
 	if err := p.Space.Validate(); err != nil {
 		return nil, &ConfigError{File: file, Msg: err.Error()}
@@ -557,9 +560,10 @@ func (p *Problem) LogDensity(x, derived []float64) float64 {
 		return math.Inf(-1)
 	}
 	ll := 0.0
+	ev := &evaluation{st: st}
 	for i, o := range p.Observations {
-		v := o.Observable.Eval(st)
-		if math.IsNaN(v) || math.IsInf(v, 0) {
+		v, err := o.Observable.eval(ev)
+		if err != nil || math.IsNaN(v) || math.IsInf(v, 0) {
 			return math.Inf(-1)
 		}
 		z := (v - o.Value) / o.Sigma

@@ -6,6 +6,7 @@ import (
 	"fmt"
 	"io"
 	"log/slog"
+	"math"
 	"os"
 	"path/filepath"
 	"strings"
@@ -15,6 +16,7 @@ import (
 	"golang.org/x/term"
 
 	"plumb/forward"
+	"plumb/forward/tides"
 	"plumb/inversion"
 	"plumb/inversion/modelfile"
 	"plumb/inversion/store"
@@ -205,19 +207,28 @@ func checkCmd() *cobra.Command {
 
 // forwardResult is the JSON printed by plumb forward.
 type forwardResult struct {
-	RadiusKm          float64 `json:"radius_km"`
-	MassKg            float64 `json:"mass_kg"`
-	MeanDensityKgM3   float64 `json:"mean_density_kg_m3"`
-	SurfaceGravityMS2 float64 `json:"surface_gravity_m_s2"`
-	MoIFactor         float64 `json:"moi_factor"`
-	CentralPressurePa float64 `json:"central_pressure_pa"`
-	Layers            int     `json:"layers"`
+	RadiusKm          float64   `json:"radius_km"`
+	MassKg            float64   `json:"mass_kg"`
+	MeanDensityKgM3   float64   `json:"mean_density_kg_m3"`
+	SurfaceGravityMS2 float64   `json:"surface_gravity_m_s2"`
+	MoIFactor         float64   `json:"moi_factor"`
+	CentralPressurePa float64   `json:"central_pressure_pa"`
+	Layers            int       `json:"layers"`
+	Love              *loveJSON `json:"love,omitempty"`
+}
+
+// loveJSON holds static elastic Love numbers; l is null when undefined (a fluid surface).
+type loveJSON struct {
+	Degree int      `json:"degree"`
+	K      float64  `json:"k"`
+	H      float64  `json:"h"`
+	L      *float64 `json:"l"`
 }
 
 func forwardCmd() *cobra.Command {
 	var model, profile string
 	var asJSON bool
-	var perLayer int
+	var perLayer, degree int
 	c := &cobra.Command{
 		Use:   "forward --model FILE",
 		Short: "Evaluate one interior model (tabulated CSV or layered YAML)",
@@ -240,6 +251,16 @@ func forwardCmd() *cobra.Command {
 				SurfaceGravityMS2: st.SurfaceGravity(), MoIFactor: st.MoIFactor(),
 				CentralPressurePa: st.CentralPressure(), Layers: len(st.Model.Layers),
 			}
+			if degree > 0 {
+				k, h, l, err := tides.Love(st, degree)
+				if err != nil {
+					return inputError{fmt.Errorf("%s: Love numbers: %w", model, err)}
+				}
+				r.Love = &loveJSON{Degree: degree, K: k, H: h}
+				if !math.IsNaN(l) {
+					r.Love.L = &l
+				}
+			}
 			if profile != "" {
 				if err := writeProfile(profile, st.Profile(perLayer)); err != nil {
 					return err
@@ -261,6 +282,13 @@ func forwardCmd() *cobra.Command {
 			fmt.Fprintf(tw, "surface gravity\t%.6g m/s2\n", r.SurfaceGravityMS2)
 			fmt.Fprintf(tw, "moment of inertia factor I/(MR²)\t%.6g\n", r.MoIFactor)
 			fmt.Fprintf(tw, "central pressure\t%.6g GPa\n", r.CentralPressurePa/1e9)
+			if lv := r.Love; lv != nil {
+				ls := "undefined (fluid surface)"
+				if lv.L != nil {
+					ls = fmt.Sprintf("%.6g", *lv.L)
+				}
+				fmt.Fprintf(tw, "Love numbers, degree %d (static, elastic)\tk %.6g  h %.6g  l %s\n", lv.Degree, lv.K, lv.H, ls)
+			}
 			return tw.Flush()
 		},
 	}
@@ -269,6 +297,7 @@ func forwardCmd() *cobra.Command {
 	f.BoolVar(&asJSON, "json", false, "print JSON")
 	f.StringVar(&profile, "profile", "", "also write the solved radius/density/vp/vs/g/P profile to this CSV file")
 	f.IntVar(&perLayer, "nodes-per-layer", 2, "profile nodes per layer (with --profile)")
+	f.IntVar(&degree, "degree", 2, "degree of the tidal Love numbers (0: skip them)")
 	return c
 }
 

@@ -118,10 +118,7 @@ func TestForwardJSON(t *testing.T) {
 	if code != 0 {
 		t.Fatalf("exit %d: %s", code, stderr)
 	}
-	var r map[string]float64
-	if err := json.Unmarshal([]byte(stdout), &r); err != nil {
-		t.Fatal(err)
-	}
+	r := numbers(t, stdout)
 	r1, r2 := 1e6, 2e6
 	mass := 4 * math.Pi / 3 * (8000*r1*r1*r1 + 3500*(r2*r2*r2-r1*r1*r1))
 	inertia := 8 * math.Pi / 15 * (8000*math.Pow(r1, 5) + 3500*(math.Pow(r2, 5)-math.Pow(r1, 5)))
@@ -140,6 +137,11 @@ func TestForwardJSON(t *testing.T) {
 	}
 	if _, ok := r["central_pressure_pa"]; !ok {
 		t.Error("central_pressure_pa missing")
+	}
+	// Love numbers of a solid shell over a fluid core: degree 2, and between the rigid limit 0 and
+	// the fluid-body limit 3/2 (Love 1911).
+	if r["love.degree"] != 2 || !(r["love.k"] > 0 && r["love.k"] < 1.5) || !(r["love.h"] > 0) {
+		t.Errorf("love numbers %v %v %v", r["love.degree"], r["love.k"], r["love.h"])
 	}
 	// The written profile reads back as a model with the same mass.
 	code, stdout2, _ := plumb(t, "forward", "--model", prof, "--json")
@@ -212,14 +214,10 @@ func TestForwardYAMLEqualsCSV(t *testing.T) {
 		if code != 0 {
 			t.Fatalf("%s: exit %d: %s", file, code, errOut)
 		}
-		var r map[string]float64
-		if err := json.Unmarshal([]byte(out), &r); err != nil {
-			t.Fatal(err)
-		}
-		return r
+		return numbers(t, out)
 	}
 	y, c := get("truth.yaml"), get("truth.csv")
-	for _, k := range []string{"mass_kg", "moi_factor", "central_pressure_pa", "surface_gravity_m_s2"} {
+	for _, k := range []string{"mass_kg", "moi_factor", "central_pressure_pa", "surface_gravity_m_s2", "love.k", "love.h"} {
 		if math.Abs(y[k]-c[k]) > 1e-3*math.Abs(c[k]) {
 			t.Errorf("%s: YAML %v, CSV %v", k, y[k], c[k])
 		}
@@ -240,4 +238,27 @@ func TestForwardYAMLEqualsCSV(t *testing.T) {
 	if code != 2 || !strings.Contains(stderr, "layers[0].outer_radius_km") || !strings.Contains(stderr, "fixed values") {
 		t.Errorf("model file with priors: exit %d, %q", code, stderr)
 	}
+}
+
+// numbers decodes plumb forward's JSON into a flat map; nested keys are joined with a dot.
+func numbers(t *testing.T, out string) map[string]float64 {
+	t.Helper()
+	var raw map[string]any
+	if err := json.Unmarshal([]byte(out), &raw); err != nil {
+		t.Fatalf("%v in %s", err, out)
+	}
+	flat := map[string]float64{}
+	var walk func(prefix string, m map[string]any)
+	walk = func(prefix string, m map[string]any) {
+		for k, v := range m {
+			switch x := v.(type) {
+			case float64:
+				flat[prefix+k] = x
+			case map[string]any:
+				walk(prefix+k+".", x)
+			}
+		}
+	}
+	walk("", raw)
+	return flat
 }
