@@ -144,14 +144,10 @@ type calc struct {
 }
 
 func newCalc(s *forward.Structure, n int, tol float64) (*calc, error) {
-	c := &calc{st: s, n: n, fn: float64(n), L: float64(n * (n + 1)), R: s.Radius()}
-	c.rhoBar = s.MeanDensity()
-	c.g0 = s.SurfaceGravity()
-	c.S = c.rhoBar * c.g0 * c.R
-	if !(c.R > 0) || !(c.S > 0) || math.IsInf(c.S, 0) {
-		return nil, fmt.Errorf("tides: structure has radius %g m, surface gravity %g m/s²", c.R, c.g0)
+	c, err := newScales(s, n)
+	if err != nil {
+		return nil, err
 	}
-	var err error
 	if c.solid, err = ode.NewSolver(18, tol, tol); err != nil {
 		return nil, err
 	}
@@ -160,6 +156,19 @@ func newCalc(s *forward.Structure, n int, tol float64) (*calc, error) {
 	}
 	c.fSolid = c.derivSolid
 	c.fFluid = c.derivFluid
+	return c, nil
+}
+
+// newScales returns a calc with the degree and the units of the
+// dimensionless variables set, but without solvers.
+func newScales(s *forward.Structure, n int) (*calc, error) {
+	c := &calc{st: s, n: n, fn: float64(n), L: float64(n * (n + 1)), R: s.Radius()}
+	c.rhoBar = s.MeanDensity()
+	c.g0 = s.SurfaceGravity()
+	c.S = c.rhoBar * c.g0 * c.R
+	if !(c.R > 0) || !(c.S > 0) || math.IsInf(c.S, 0) {
+		return nil, fmt.Errorf("tides: structure has radius %g m, surface gravity %g m/s²", c.R, c.g0)
+	}
 	return c, nil
 }
 
