@@ -25,6 +25,8 @@ type Config struct {
 	Layers []LayerConfig `mapstructure:"layers" json:"layers" yaml:"layers"`
 	// Constraints are optional structural constraints (a violated one makes the prior zero).
 	Constraints ConstraintConfig `mapstructure:"constraints" json:"constraints" yaml:"constraints"`
+	// Tides sets the tidal forcing for the k2, h2 and tidal_q observables.
+	Tides TidesConfig `mapstructure:"tides" json:"tides" yaml:"tides"`
 	// Observations maps an observable key (unit in the name) to its measured value and 1σ.
 	Observations map[string]ObservationConfig `mapstructure:"observations" json:"observations" yaml:"observations"`
 	// Sampler sets the Markov chains.
@@ -60,8 +62,22 @@ type LayerConfig struct {
 	// EOS, instead of density_kg_m3/vp_km_s/vs_km_s, gives the layer an equation of state:
 	// density and moduli then follow from the hydrostatic pressure (see eosconfig.go).
 	EOS any `mapstructure:"eos" json:"eos,omitempty" yaml:"eos,omitempty"`
-	// ViscosityPaS is recorded with the layer for rheology-aware observables.
+	// ViscosityPaS is the layer's viscosity; with tides.period_h it makes the layer respond
+	// anelastically.
 	ViscosityPaS any `mapstructure:"viscosity_pa_s" json:"viscosity_pa_s,omitempty" yaml:"viscosity_pa_s,omitempty"`
+	// Rheology is "maxwell" (default when a viscosity is given) or "andrade", which also takes
+	// AndradeAlpha (0 < α < 1) and AndradeZeta (ζ > 0, Andrade time / Maxwell time).
+	Rheology     string `mapstructure:"rheology" json:"rheology,omitempty" yaml:"rheology,omitempty"`
+	AndradeAlpha any    `mapstructure:"andrade_alpha" json:"andrade_alpha,omitempty" yaml:"andrade_alpha,omitempty"`
+	AndradeZeta  any    `mapstructure:"andrade_zeta" json:"andrade_zeta,omitempty" yaml:"andrade_zeta,omitempty"`
+}
+
+// TidesConfig sets the tidal forcing.
+type TidesConfig struct {
+	// PeriodH is the forcing period in hours. Without it the Love numbers are static and
+	// elastic; with it, layers with a viscosity respond anelastically (Maxwell or Andrade) and
+	// k2/h2 are the real parts of the complex response.
+	PeriodH any `mapstructure:"period_h" json:"period_h,omitempty" yaml:"period_h,omitempty"`
 }
 
 // ConstraintConfig holds optional structural constraints.

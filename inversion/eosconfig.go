@@ -171,7 +171,8 @@ func (p *Problem) planHydro() {
 func (p *Problem) checkShear(b *builder) error {
 	tidal := false
 	for _, o := range p.Observations {
-		tidal = tidal || o.Observable.Key == "k2" || o.Observable.Key == "h2"
+		k := o.Observable.Key
+		tidal = tidal || k == "k2" || k == "h2" || k == "tidal_q"
 	}
 	if !tidal {
 		return nil

@@ -23,25 +23,27 @@ type Observable struct {
 // ToSI is the factor from the key's unit to SI.
 func (o Observable) ToSI() float64 { return o.toSI }
 
-// Predict computes the observable (SI) for a solved structure.
-func (o Observable) Predict(st *forward.Structure) (float64, error) {
-	return o.eval(&evaluation{st: st})
+// Predict computes the observable (SI) for the structure p solved at x.
+func (o Observable) Predict(p *Problem, st *forward.Structure, x []float64) (float64, error) {
+	return o.eval(&evaluation{st: st, p: p, x: x})
 }
 
 // evaluation is one model's structure with the results that several observables share (the
-// Love numbers serve k2 and h2), computed at most once.
+// Love numbers serve k2, h2 and tidal_q), computed at most once.
 type evaluation struct {
 	st      *forward.Structure
-	love    [3]float64
+	p       *Problem
+	x       []float64
+	love    [3]complex128
 	loveErr error
 	loveOK  bool
 }
 
-// love2 returns the degree-2 elastic Love numbers k, h, l.
-func (e *evaluation) love2() ([3]float64, error) {
+// love2 returns the degree-2 Love numbers k, h, l (complex at a tidal period).
+func (e *evaluation) love2() ([3]complex128, error) {
 	if !e.loveOK {
-		k, h, l, err := tides.Love(e.st, 2)
-		e.love, e.loveErr, e.loveOK = [3]float64{k, h, l}, err, true
+		k, h, l, err := e.p.Tides(e.st, e.x)
+		e.love, e.loveErr, e.loveOK = [3]complex128{k, h, l}, err, true
 	}
 	return e.love, e.loveErr
 }
@@ -50,13 +52,16 @@ func bulk(f func(*forward.Structure) float64) func(*evaluation) (float64, error)
 	return func(e *evaluation) (float64, error) { return f(e.st), nil }
 }
 
-func loveNumber(i int, name string) func(*evaluation) (float64, error) {
+func realPart(c complex128) float64 { return real(c) }
+
+// loveNumber gives f of Love number i (0 k, 1 h, 2 l).
+func loveNumber(i int, name string, f func(complex128) float64) func(*evaluation) (float64, error) {
 	return func(e *evaluation) (float64, error) {
 		l, err := e.love2()
 		if err != nil {
 			return math.NaN(), fmt.Errorf("%s: %w", name, err)
 		}
-		return l[i], nil
+		return f(l[i]), nil
 	}
 }
 
@@ -69,8 +74,10 @@ func Observables() []Observable {
 		{Key: "mean_density_kg_m3", Unit: "kg/m3", toSI: 1, eval: bulk((*forward.Structure).MeanDensity)},
 		{Key: "surface_gravity_m_s2", Unit: "m/s2", toSI: 1, eval: bulk((*forward.Structure).SurfaceGravity)},
 		{Key: "radius_km", Unit: "km", toSI: 1e3, eval: bulk((*forward.Structure).Radius)},
-		// Degree-2 elastic (static) tidal Love numbers.
-		{Key: "k2", Unit: "", toSI: 1, eval: loveNumber(0, "k2")},
-		{Key: "h2", Unit: "", toSI: 1, eval: loveNumber(1, "h2")},
+		// Degree-2 tidal Love numbers: static and elastic, or the real parts of the anelastic
+		// response at tides.period_h; tidal_q = |k2|/|Im k2| needs the period.
+		{Key: "k2", Unit: "", toSI: 1, eval: loveNumber(0, "k2", realPart)},
+		{Key: "h2", Unit: "", toSI: 1, eval: loveNumber(1, "h2", realPart)},
+		{Key: "tidal_q", Unit: "", toSI: 1, eval: loveNumber(0, "tidal_q", tides.QualityFactor)},
 	}
 }

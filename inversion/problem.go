@@ -34,6 +34,8 @@ type layerPlan struct {
 	hasVisc     bool
 	// eos, when set, replaces density/vp/vs: the layer is compressed by the hydrostatic pressure.
 	eos *eosPlan
+	// rheology is the layer's anelastic response at the tidal period.
+	rheology rheologyPlan
 	// outerColumn is set when the top radius is derived (from thicknesses or the planet radius
 	// parameter) and recorded as a derived column.
 	outerColumn bool
@@ -59,6 +61,8 @@ type Problem struct {
 	// hydro is set when some layer has an equation of state: the structure is then solved
 	// self-consistently (forward.SolveHydrostatic) instead of in closed form.
 	hydro bool
+	// period is the tidal forcing period (s); 0 for static elastic Love numbers.
+	period float64
 }
 
 // Observation is one datum with its Gaussian error, SI units.
@@ -103,6 +107,9 @@ func Build(c *Config, file string) (*Problem, error) {
 	}
 	p.planHydro()
 	p.monotone = c.Constraints.DensityIncreasesWithDepth
+	if p.period, err = b.tidalPeriod(c.Tides); err != nil {
+		return nil, err
+	}
 	if err := p.observations(b, c.Observations); err != nil {
 		return nil, err
 	}
@@ -156,6 +163,9 @@ func (b *builder) layer(key string, lc LayerConfig, top bool) (layerPlan, error)
 		if lp.viscosity, lp.hasVisc, err = b.quantity(key+".viscosity_pa_s", lc.ViscosityPaS, pre+"viscosity_pa_s", unitPaS, false); err != nil {
 			return lp, err
 		}
+		if err := b.rheology(key, lc, pre, &lp); err != nil {
+			return lp, err
+		}
 		return lp, b.state(key, lc.State, pre, &lp)
 	}
 	if lp.density, _, err = b.property(key+".density_kg_m3", lc.DensityKgM3, pre, "density", unitKgM3, "kg_m3", true); err != nil {
@@ -170,6 +180,9 @@ func (b *builder) layer(key string, lc LayerConfig, top bool) (layerPlan, error)
 		return lp, err
 	}
 	if lp.viscosity, lp.hasVisc, err = b.quantity(key+".viscosity_pa_s", lc.ViscosityPaS, pre+"viscosity_pa_s", unitPaS, false); err != nil {
+		return lp, err
+	}
+	if err := b.rheology(key, lc, pre, &lp); err != nil {
 		return lp, err
 	}
 	return lp, b.state(key, lc.State, pre, &lp)
@@ -384,6 +397,9 @@ func (p *Problem) observations(b *builder, obs map[string]ObservationConfig) err
 		if !(s > 0) || math.IsInf(s, 0) || math.IsNaN(v) || math.IsInf(v, 0) {
 			return b.errf(key, "sigma %g must be positive and finite, value %g finite", s, v)
 		}
+		if reg[i].Key == "tidal_q" && p.period == 0 {
+			return b.errf(key, "tidal_q needs a forcing period: set tides.period_h")
+		}
 		if reg[i].Key == "radius_km" && p.radius.isFixed() {
 			return b.errf(key, "planet.radius_km is fixed; observe the radius only when it is a parameter")
 		}
@@ -560,7 +576,7 @@ func (p *Problem) LogDensity(x, derived []float64) float64 {
 		return math.Inf(-1)
 	}
 	ll := 0.0
-	ev := &evaluation{st: st}
+	ev := &evaluation{st: st, p: p, x: x}
 	for i, o := range p.Observations {
 		v, err := o.Observable.eval(ev)
 		if err != nil || math.IsNaN(v) || math.IsInf(v, 0) {

@@ -217,18 +217,24 @@ type forwardResult struct {
 	Love              *loveJSON `json:"love,omitempty"`
 }
 
-// loveJSON holds static elastic Love numbers; l is null when undefined (a fluid surface).
+// loveJSON holds Love numbers: static elastic ones, and with a forcing period the complex k
+// (real, imaginary part and Q = |k|/|Im k|); l is null when undefined (a fluid surface).
 type loveJSON struct {
-	Degree int      `json:"degree"`
-	K      float64  `json:"k"`
-	H      float64  `json:"h"`
-	L      *float64 `json:"l"`
+	Degree  int      `json:"degree"`
+	K       float64  `json:"k"`
+	H       float64  `json:"h"`
+	L       *float64 `json:"l"`
+	PeriodH *float64 `json:"period_h,omitempty"`
+	KReal   *float64 `json:"k_real,omitempty"`
+	KImag   *float64 `json:"k_imag,omitempty"`
+	Q       *float64 `json:"q,omitempty"`
 }
 
 func forwardCmd() *cobra.Command {
 	var model, profile string
 	var asJSON bool
 	var perLayer, degree int
+	var periodH float64
 	c := &cobra.Command{
 		Use:   "forward --model FILE",
 		Short: "Evaluate one interior model (tabulated CSV or layered YAML)",
@@ -252,14 +258,11 @@ func forwardCmd() *cobra.Command {
 				CentralPressurePa: st.CentralPressure(), Layers: len(st.Model.Layers),
 			}
 			if degree > 0 {
-				k, h, l, err := tides.Love(st, degree)
+				lv, err := loveNumbers(st, degree, periodH)
 				if err != nil {
 					return inputError{fmt.Errorf("%s: Love numbers: %w", model, err)}
 				}
-				r.Love = &loveJSON{Degree: degree, K: k, H: h}
-				if !math.IsNaN(l) {
-					r.Love.L = &l
-				}
+				r.Love = lv
 			}
 			if profile != "" {
 				if err := writeProfile(profile, st.Profile(perLayer)); err != nil {
@@ -288,6 +291,13 @@ func forwardCmd() *cobra.Command {
 					ls = fmt.Sprintf("%.6g", *lv.L)
 				}
 				fmt.Fprintf(tw, "Love numbers, degree %d (static, elastic)\tk %.6g  h %.6g  l %s\n", lv.Degree, lv.K, lv.H, ls)
+				if lv.PeriodH != nil {
+					q := "∞ (no dissipation)"
+					if lv.Q != nil {
+						q = fmt.Sprintf("%.4g", *lv.Q)
+					}
+					fmt.Fprintf(tw, "k at %g h (Maxwell where a viscosity is given)\t%.6g %+.3gi  Q %s\n", *lv.PeriodH, *lv.KReal, *lv.KImag, q)
+				}
 			}
 			return tw.Flush()
 		},
@@ -298,7 +308,45 @@ func forwardCmd() *cobra.Command {
 	f.StringVar(&profile, "profile", "", "also write the solved radius/density/vp/vs/g/P profile to this CSV file")
 	f.IntVar(&perLayer, "nodes-per-layer", 2, "profile nodes per layer (with --profile)")
 	f.IntVar(&degree, "degree", 2, "degree of the tidal Love numbers (0: skip them)")
+	f.Float64Var(&periodH, "period-h", 0, "tidal forcing period in hours: adds the complex k and Q, layers with a viscosity responding as Maxwell bodies")
 	return c
+}
+
+// loveNumbers computes the static elastic Love numbers of degree n and, for periodH > 0, the
+// complex k at that period with a Maxwell rheology in every layer that has a viscosity (a model
+// file's rheology keys are used by inversions; forward keeps to the one rheology a tabulated
+// model can express).
+func loveNumbers(st *forward.Structure, n int, periodH float64) (*loveJSON, error) {
+	k, h, l, err := tides.Love(st, n)
+	if err != nil {
+		return nil, err
+	}
+	lv := &loveJSON{Degree: n, K: k, H: h}
+	if !math.IsNaN(l) {
+		lv.L = &l
+	}
+	if periodH == 0 {
+		return lv, nil
+	}
+	if !(periodH > 0) {
+		return nil, fmt.Errorf("--period-h %g is not a positive period", periodH)
+	}
+	rh := make([]tides.Rheology, len(st.Model.Layers))
+	for i, ly := range st.Model.Layers {
+		if ly.Viscosity > 0 {
+			rh[i] = tides.Rheology{Kind: tides.Maxwell, Viscosity: ly.Viscosity}
+		}
+	}
+	kc, _, _, err := tides.ComplexLove(st, n, periodH*3600, rh)
+	if err != nil {
+		return nil, err
+	}
+	re, im, q := real(kc), imag(kc), tides.QualityFactor(kc)
+	lv.PeriodH, lv.KReal, lv.KImag = &periodH, &re, &im
+	if !math.IsInf(q, 0) {
+		lv.Q = &q
+	}
+	return lv, nil
 }
 
 // solveModelFile reads a tabulated CSV model or a layered YAML/TOML model (the planet and layers

@@ -262,3 +262,32 @@ func numbers(t *testing.T, out string) map[string]float64 {
 	walk("", raw)
 	return flat
 }
+
+// forward --period-h: a viscous mantle lags the tide (Im k < 0, finite Q > 0, the sign convention
+// of forward/tides) and is softer than the elastic body (Re k above the static elastic k); without
+// any viscosity there is no dissipation (no q key). The anelastic physics itself is checked
+// against the Kelvin–Maxwell formula in forward/tides.
+func TestForwardPeriod(t *testing.T) {
+	dir := t.TempDir()
+	visc := write(t, dir, "v.csv", `radius_km,density_kg_m3,vp_km_s,vs_km_s,viscosity_pa_s
+0,8000,6,0,0
+1000,8000,6,0,0
+1000,3500,8,4.5,1e16
+2000,3500,8,4.5,1e16
+`)
+	code, out, errOut := plumb(t, "forward", "--model", visc, "--json", "--period-h", "24")
+	if code != 0 {
+		t.Fatalf("exit %d: %s", code, errOut)
+	}
+	r := numbers(t, out)
+	if !(r["love.k_imag"] < 0) || !(r["love.q"] > 0) || !(r["love.k_real"] > r["love.k"]) || r["love.period_h"] != 24 {
+		t.Errorf("anelastic k: %v", r)
+	}
+	code, out, _ = plumb(t, "forward", "--model", write(t, dir, "e.csv", tableCSV), "--json", "--period-h", "24")
+	if r := numbers(t, out); code != 0 || r["love.k_imag"] != 0 || strings.Contains(out, `"q"`) {
+		t.Errorf("elastic body at a period: exit %d, %v", code, r)
+	}
+	if code, _, _ := plumb(t, "forward", "--model", visc, "--period-h", "24"); code != 0 {
+		t.Errorf("table output with a period: exit %d", code)
+	}
+}
