@@ -154,7 +154,6 @@ type ccalc struct {
 	*calc
 	omega  float64 // rad/s
 	rh     []Rheology
-	ilayer int
 	solid  *ode.Solver // 36 components: three complex 6-vectors
 	fluid  *ode.Solver // 4 components: one complex 2-vector
 	y      [18]complex128
@@ -187,7 +186,7 @@ func (c *ccalc) modulus(mu float64) complex128 {
 	if len(c.rh) == 0 {
 		return complex(mu, 0)
 	}
-	r := c.rh[c.ilayer]
+	r := c.rh[c.cur]
 	switch r.Kind {
 	case Maxwell:
 		ew := r.Viscosity * c.omega / c.S // ηω in units of ρ̄g₀R
@@ -213,6 +212,7 @@ func (c *ccalc) cparams(x float64) (rho, g float64, lam, mu complex128) {
 }
 
 func (c *ccalc) derivSolid(x float64, yr, dyr []float64) {
+	c.locate(x)
 	rho, g, lam, mu := c.cparams(x)
 	n, L := c.fn, c.L
 	beta := lam + 2*mu
@@ -250,6 +250,7 @@ func (c *ccalc) derivSolid(x float64, yr, dyr []float64) {
 func cmul(a float64, z complex128) complex128 { return complex(a*real(z), a*imag(z)) }
 
 func (c *ccalc) derivFluid(x float64, y, dy []float64) {
+	c.locate(x)
 	rho, g, _, _ := c.params(x)
 	n := c.fn
 	q := 3 * rho / g
@@ -281,17 +282,20 @@ func (c *ccalc) run() (k, h, l complex128, err error) {
 	// Start radius as in calc.run.
 	x1 := layers[0].Outer / c.R
 	x0 := math.Min(0.1*x1, math.Pow(1e-3, 2/n))
-	c.layer, c.ilayer = &layers[0], 0
+	c.enter(0, 0)
 	if layers[0].Fluid {
 		c.yf = [2]complex128{complex(math.Pow(x0, n), 0), complex(2*(n-1)*math.Pow(x0, n-1), 0)}
 	} else {
 		c.startSolid(x0)
 	}
 	x := x0
-	for i := range layers {
-		c.layer, c.ilayer = &layers[i], i
-		xb := layers[i].Outer / c.R
-		if i == len(layers)-1 {
+	// Segments of layers joined by continuous boundaries, as in calc.run
+	// (with equal rheologies).
+	for i, j := 0, 0; i < len(layers); i = j + 1 {
+		j = c.segmentEnd(i, c.rh)
+		c.enter(i, j)
+		xb := layers[j].Outer / c.R
+		if j == len(layers)-1 {
 			xb = 1
 		}
 		if i > 0 {
@@ -316,10 +320,10 @@ func (c *ccalc) run() (k, h, l complex128, err error) {
 			c.unpackSolid()
 		}
 		if c.bad != nil {
-			return nan, nan, nan, fmt.Errorf("tides: layer %d: %w", i, c.bad)
+			return nan, nan, nan, fmt.Errorf("tides: layer %d: %w", c.cur, c.bad)
 		}
 		if ierr != nil {
-			return nan, nan, nan, fmt.Errorf("tides: layer %d (%q): %w", i, layers[i].Name, ierr)
+			return nan, nan, nan, fmt.Errorf("tides: layer %d (%q): %w", c.cur, layers[c.cur].Name, ierr)
 		}
 		x = xb
 	}

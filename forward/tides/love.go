@@ -102,7 +102,10 @@ func LoveTol(s *forward.Structure, n int, tol float64) (k, h, l float64, err err
 
 // checkModuli checks that every solid layer has μ > 0 and a bulk modulus
 // K = ρ(vp² − 4vs²/3) > 0 at its ends and at interior sample points (the
-// right-hand side checks again at every point it uses).
+// right-hand side checks again at every point it uses). If vp and vs are
+// both at most linear in r the ends suffice: vs > 0 at both ends then holds
+// throughout, and vp² − 4vs²/3 = (vp − 2vs/√3)(vp + 2vs/√3) is a product of
+// two linear factors that are then positive at both ends, hence throughout.
 func checkModuli(s *forward.Structure) error {
 	const samples = 16
 	for i := range s.Model.Layers {
@@ -110,7 +113,11 @@ func checkModuli(s *forward.Structure) error {
 		if l.Fluid {
 			continue
 		}
-		for j := 0; j <= samples; j++ {
+		step := 1
+		if len(l.Vp.C) <= 2 && len(l.Vs.C) <= 2 {
+			step = samples
+		}
+		for j := 0; j <= samples; j += step {
 			r := l.Inner + (l.Outer-l.Inner)*float64(j)/samples
 			if j == samples {
 				r = l.Outer
@@ -129,18 +136,25 @@ type calc struct {
 	st     *forward.Structure
 	n      int
 	L, fn  float64
-	R      float64 // m
-	rhoBar float64 // kg/m³
-	g0     float64 // m/s²
-	S      float64 // stress unit ρ̄ g₀ R (Pa)
-	layer  *forward.Layer
-	solid  *ode.Solver // 18 components: three 6-vectors
-	fluid  *ode.Solver // 2 components
-	y      [18]float64
-	yf     [2]float64
-	fSolid ode.Func
-	fFluid ode.Func
-	bad    error // first non-physical coefficient met by a right-hand side
+	R      float64        // m
+	rhoBar float64        // kg/m³
+	g0     float64        // m/s²
+	S      float64        // stress unit ρ̄ g₀ R (Pa)
+	layer  *forward.Layer // layer containing the current radius: Layers[cur]
+	// cur is the index of layer; during the integration of a segment
+	// (consecutive layers lo..hi joined by continuous interfaces) the
+	// right-hand side moves it within [lo, hi] to the layer containing x.
+	cur, lo, hi int
+	// perLayer ends a segment at every layer boundary (tests only: the
+	// reference against which the joined integration is checked).
+	perLayer bool
+	solid    *ode.Solver // 18 components: three 6-vectors
+	fluid    *ode.Solver // 2 components
+	y        [18]float64
+	yf       [2]float64
+	fSolid   ode.Func
+	fFluid   ode.Func
+	bad      error // first non-physical coefficient met by a right-hand side
 }
 
 func newCalc(s *forward.Structure, n int, tol float64) (*calc, error) {
@@ -172,6 +186,67 @@ func newScales(s *forward.Structure, n int) (*calc, error) {
 	return c, nil
 }
 
+// contTol is the relative tolerance within which density, vp and vs must
+// agree on both sides of a boundary for it to count as continuous (a linear
+// piece evaluated at its end is off by ~1e-12 relative through rounding).
+const contTol = 1e-9
+
+// continuous reports whether the boundary between layer a and the layer b
+// just above it is continuous: same state (solid or fluid) and density, vp
+// and (in solids) vs equal within contTol. The equations can then be
+// integrated across it without interface conditions.
+func continuous(a, b *forward.Layer) bool {
+	if a.Fluid != b.Fluid || a.Outer != b.Inner {
+		return false
+	}
+	r := a.Outer
+	same := func(p, q forward.Poly) bool {
+		u, v := p.At(r), q.At(r)
+		return math.Abs(u-v) <= contTol*math.Max(math.Abs(u), math.Abs(v))
+	}
+	return same(a.Density, b.Density) && same(a.Vp, b.Vp) && (a.Fluid || same(a.Vs, b.Vs))
+}
+
+// segmentEnd returns the index of the last layer of the segment starting at
+// layer i: the layers up to it are joined by continuous boundaries (and, if
+// rh is not empty, have equal rheologies).
+func (c *calc) segmentEnd(i int, rh []Rheology) int {
+	layers := c.st.Model.Layers
+	j := i
+	if c.perLayer {
+		return j
+	}
+	for j+1 < len(layers) && continuous(&layers[j], &layers[j+1]) && (len(rh) == 0 || rh[j] == rh[j+1]) {
+		j++
+	}
+	return j
+}
+
+// enter makes layers lo..hi the current segment, with the cursor at lo.
+func (c *calc) enter(lo, hi int) {
+	c.lo, c.hi, c.cur = lo, hi, lo
+	c.layer = &c.st.Model.Layers[lo]
+}
+
+// locate moves the cursor to the layer of the current segment containing
+// x (the nearest one if x lies outside the segment). Successive calls move
+// it by a few layers at most, so the cost is O(1) amortised.
+func (c *calc) locate(x float64) {
+	r := x * c.R
+	layers := c.st.Model.Layers
+	i := c.cur
+	for i < c.hi && r > layers[i].Outer {
+		i++
+	}
+	for i > c.lo && r < layers[i].Inner {
+		i--
+	}
+	if i != c.cur {
+		c.cur = i
+		c.layer = &layers[i]
+	}
+}
+
 // params returns the dimensionless ρ, g, λ, μ at x in the current layer.
 func (c *calc) params(x float64) (rho, g, lam, mu float64) {
 	r := x * c.R
@@ -196,6 +271,7 @@ func (c *calc) params(x float64) (rho, g, lam, mu float64) {
 }
 
 func (c *calc) derivSolid(x float64, y, dy []float64) {
+	c.locate(x)
 	rho, g, lam, mu := c.params(x)
 	n, L := c.fn, c.L
 	beta := lam + 2*mu
@@ -220,6 +296,7 @@ func (c *calc) derivSolid(x float64, y, dy []float64) {
 }
 
 func (c *calc) derivFluid(x float64, y, dy []float64) {
+	c.locate(x)
 	rho, g, _, _ := c.params(x)
 	n := c.fn
 	q := 3 * rho / g
@@ -236,17 +313,21 @@ func (c *calc) run() (k, h, l float64, err error) {
 	// solutions leaves a relative contamination of order x0^(2n+1).
 	x1 := layers[0].Outer / c.R
 	x0 := math.Min(0.1*x1, math.Pow(1e-3, 2/n))
-	c.layer = &layers[0]
+	c.enter(0, 0)
 	if layers[0].Fluid {
 		c.yf = [2]float64{math.Pow(x0, n), 2 * (n - 1) * math.Pow(x0, n-1)}
 	} else {
 		c.startSolid(x0)
 	}
 	x := x0
-	for i := range layers {
-		c.layer = &layers[i]
-		xb := layers[i].Outer / c.R
-		if i == len(layers)-1 {
+	// Each pass integrates one segment i..j of layers joined by continuous
+	// boundaries; only the boundaries between segments need interface
+	// conditions (or restart the integrator).
+	for i, j := 0, 0; i < len(layers); i = j + 1 {
+		j = c.segmentEnd(i, nil)
+		c.enter(i, j)
+		xb := layers[j].Outer / c.R
+		if j == len(layers)-1 {
 			xb = 1
 		}
 		if i > 0 {
@@ -267,10 +348,10 @@ func (c *calc) run() (k, h, l float64, err error) {
 			ierr = c.solid.Integrate(c.fSolid, x, xb, c.y[:])
 		}
 		if c.bad != nil {
-			return nan, nan, nan, fmt.Errorf("tides: layer %d: %w", i, c.bad)
+			return nan, nan, nan, fmt.Errorf("tides: layer %d: %w", c.cur, c.bad)
 		}
 		if ierr != nil {
-			return nan, nan, nan, fmt.Errorf("tides: layer %d (%q): %w", i, layers[i].Name, ierr)
+			return nan, nan, nan, fmt.Errorf("tides: layer %d (%q): %w", c.cur, layers[c.cur].Name, ierr)
 		}
 		x = xb
 	}

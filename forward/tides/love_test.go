@@ -342,3 +342,56 @@ func BenchmarkLovePREM(b *testing.B) {
 		}
 	}
 }
+
+// BenchmarkLove1000Nodes computes k2, h2, l2 of a 5-layer Earth-like model tabulated at ~1000
+// nodes (its profile, 200 nodes per layer, re-read as a piecewise-linear table: ~1000 thin layers),
+// the size of a typical tabulated input model.
+func BenchmarkLove1000Nodes(b *testing.B) {
+	pr := solve(b, earthLike(1, false)).Profile(200)
+	m, err := forward.FromTable(forward.Table{Radius: pr.Radius, Density: pr.Density, Vp: pr.Vp, Vs: pr.Vs})
+	if err != nil {
+		b.Fatal(err)
+	}
+	s, err := forward.Solve(m)
+	if err != nil {
+		b.Fatal(err)
+	}
+	b.ReportMetric(float64(len(pr.Radius)), "nodes")
+	b.ReportAllocs()
+	for b.Loop() {
+		if _, _, _, err := Love(s, 2); err != nil {
+			b.Fatal(err)
+		}
+	}
+}
+
+// TestJoinedLayers checks the integration across continuous layer boundaries
+// in one segment against the restart at every boundary (perLayer) on a model
+// tabulated at ~1000 nodes: both solve the same equations, so k2, h2, l2 must
+// agree to the integration accuracy (common practice, no source).
+func TestJoinedLayers(t *testing.T) {
+	pr := solve(t, earthLike(1, false)).Profile(200)
+	m, err := forward.FromTable(forward.Table{Radius: pr.Radius, Density: pr.Density, Vp: pr.Vp, Vs: pr.Vs})
+	if err != nil {
+		t.Fatal(err)
+	}
+	s := solve(t, m)
+	var got [2][3]float64
+	for p, per := range []bool{false, true} {
+		c, err := newCalc(s, 2, 1e-10)
+		if err != nil {
+			t.Fatal(err)
+		}
+		c.perLayer = per
+		k, h, l, err := c.run()
+		if err != nil {
+			t.Fatal(err)
+		}
+		got[p] = [3]float64{k, h, l}
+	}
+	for i, name := range []string{"k2", "h2", "l2"} {
+		if d := math.Abs(got[0][i] - got[1][i]); !(d <= 1e-8) {
+			t.Errorf("%s joined %.12f, per layer %.12f (diff %.2g)", name, got[0][i], got[1][i], d)
+		}
+	}
+}
