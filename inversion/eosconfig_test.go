@@ -99,7 +99,7 @@ func TestEOSConfig(t *testing.T) {
 }
 
 func TestEOSConfigErrors(t *testing.T) {
-	cases := []struct{ name, old, new, want string }{
+	cases := []configEdit{
 		{"eos and density", "    state: liquid", "    state: liquid\n    density_kg_m3: 3", "layers[0].density_kg_m3"},
 		{"unknown kind", "kind: vinet", "kind: murnaghan", "layers[0].eos.kind"},
 		{"unknown eos key", "k0_prime: 5.4}", "k0_prime: 5.4, t0_k: 300}", `"t0_k"`},
@@ -107,10 +107,30 @@ func TestEOSConfigErrors(t *testing.T) {
 		{"missing k0", "k0_gpa: 160, ", "", "layers[0].eos.k0_gpa"},
 		{"k2 without shear for a core that can be solid", "    state: liquid\n", "    state: {prior: categorical, values: [liquid, solid]}\n", "layers[0].eos.shear"},
 	}
+	checkEdits(t, eosConfig, cases)
+}
+
+// BenchmarkLogDensityEOS times one posterior evaluation with a self-consistent 3-layer solve.
+func BenchmarkLogDensityEOS(b *testing.B) {
+	p := buildConfig(b, eosConfig)
+	x := []float64{2000e3, 7400, 130e9}
+	der := make([]float64, p.NumDerived())
+	b.ReportAllocs()
+	for b.Loop() {
+		p.LogDensity(x, der)
+	}
+}
+
+// configEdit is a bad-input case: replace old by new in a valid config; the error must be a
+// ConfigError naming want.
+type configEdit struct{ name, old, new, want string }
+
+func checkEdits(t *testing.T, base string, cases []configEdit) {
+	t.Helper()
 	for _, tc := range cases {
 		t.Run(tc.name, func(t *testing.T) {
-			text := strings.Replace(eosConfig, tc.old, tc.new, 1)
-			if text == eosConfig {
+			text := strings.Replace(base, tc.old, tc.new, 1)
+			if text == base {
 				t.Fatal("edit did not apply")
 			}
 			path := writeConfig(t, "bad.yaml", text)
@@ -123,16 +143,5 @@ func TestEOSConfigErrors(t *testing.T) {
 				t.Errorf("error %v, want a ConfigError naming %s", err, tc.want)
 			}
 		})
-	}
-}
-
-// BenchmarkLogDensityEOS times one posterior evaluation with a self-consistent 3-layer solve.
-func BenchmarkLogDensityEOS(b *testing.B) {
-	p := buildConfig(b, eosConfig)
-	x := []float64{2000e3, 7400, 130e9}
-	der := make([]float64, p.NumDerived())
-	b.ReportAllocs()
-	for b.Loop() {
-		p.LogDensity(x, der)
 	}
 }

@@ -1,7 +1,6 @@
 package inversion
 
 import (
-	"errors"
 	"math"
 	"strings"
 	"testing"
@@ -75,7 +74,7 @@ func TestTidalObservables(t *testing.T) {
 }
 
 func TestTidalConfigErrors(t *testing.T) {
-	cases := []struct{ name, old, new, want string }{
+	cases := []configEdit{
 		{"q without period", "tides: {period_h: 24}\n", "", "observations.tidal_q"},
 		{"bad period", "period_h: 24", "period_h: -3", "tides.period_h"},
 		{"unknown rheology", "rheology: andrade", "rheology: burgers", "layers[1].rheology"},
@@ -84,21 +83,5 @@ func TestTidalConfigErrors(t *testing.T) {
 		{"alpha for maxwell", "rheology: andrade", "rheology: maxwell", "layers[1].rheology"},
 		{"unknown tides key", "tides: {period_h: 24}", "tides: {period_h: 24, degree: 3}", "tides"},
 	}
-	for _, tc := range cases {
-		t.Run(tc.name, func(t *testing.T) {
-			text := strings.Replace(tidalConfig, tc.old, tc.new, 1)
-			if text == tidalConfig {
-				t.Fatal("edit did not apply")
-			}
-			path := writeConfig(t, "bad.yaml", text)
-			cfg, err := Load(path, nil)
-			if err == nil {
-				_, err = Build(cfg, path)
-			}
-			var ce *ConfigError
-			if !errors.As(err, &ce) || !strings.Contains(err.Error(), tc.want) {
-				t.Errorf("error %v, want a ConfigError naming %s", err, tc.want)
-			}
-		})
-	}
+	checkEdits(t, tidalConfig, cases)
 }
