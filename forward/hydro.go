@@ -281,14 +281,7 @@ func newHydroSolver(m EOSModel, nodes int) *hydroSolver {
 	ncoef := 0
 	for j, l := range m.Layers {
 		for t := range per {
-			r := l.Inner + (l.Outer-l.Inner)*float64(t)/float64(per-1)
-			switch t {
-			case 0:
-				r = l.Inner
-			case per - 1:
-				r = l.Outer
-			}
-			h.r[j*per+t] = r
+			h.r[j*per+t] = nodeRadius(l.Inner, l.Outer, t, per)
 		}
 		deg := layerDegree(l.Inner, l.Outer, per)
 		for g := j * per; g < (j+1)*per-1; g += deg {

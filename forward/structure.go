@@ -380,13 +380,7 @@ func (s *Structure) Profile(n int) Profile {
 	for i := range s.Model.Layers {
 		l := &s.Model.Layers[i]
 		for k := range n {
-			r := l.Inner + (l.Outer-l.Inner)*float64(k)/float64(n-1)
-			switch k {
-			case 0:
-				r = l.Inner
-			case n - 1:
-				r = l.Outer
-			}
+			r := nodeRadius(l.Inner, l.Outer, k, n)
 			p.Radius[idx] = r
 			p.Density[idx] = l.Density.At(r)
 			p.Vp[idx] = l.Vp.At(r)
@@ -399,4 +393,17 @@ func (s *Structure) Profile(n int) Profile {
 		}
 	}
 	return p
+}
+
+// nodeRadius is node k of n ≥ 2 evenly spaced nodes on [inner, outer], the end nodes exactly
+// inner and outer (so boundaries match bit for bit between layers). Shared by Profile and the
+// hydrostatic solver's grid.
+func nodeRadius(inner, outer float64, k, n int) float64 {
+	switch k {
+	case 0:
+		return inner
+	case n - 1:
+		return outer
+	}
+	return inner + (outer-inner)*float64(k)/float64(n-1)
 }
