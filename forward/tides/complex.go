@@ -172,7 +172,7 @@ func newCCalc(s *forward.Structure, n int, tol, omega float64, rh []Rheology) (*
 	if c.solid, err = ode.NewSolver(36, tol, tol); err != nil {
 		return nil, err
 	}
-	if c.fluid, err = ode.NewSolver(4, tol, tol); err != nil {
+	if c.fluid, err = ode.NewSolver(4, fluidTol*tol, fluidTol*tol); err != nil {
 		return nil, err
 	}
 	c.fSolid = c.derivSolid
@@ -320,7 +320,7 @@ func (c *ccalc) run() (k, h, l complex128, err error) {
 			c.unpackSolid()
 		}
 		if c.bad != nil {
-			return nan, nan, nan, fmt.Errorf("tides: layer %d: %w", c.cur, c.bad)
+			return nan, nan, nan, fmt.Errorf("tides: layer %d (%q): %w", c.cur, layers[c.cur].Name, c.bad)
 		}
 		if ierr != nil {
 			return nan, nan, nan, fmt.Errorf("tides: layer %d (%q): %w", c.cur, layers[c.cur].Name, ierr)
@@ -390,7 +390,7 @@ func (c *ccalc) startSolid(x0 float64) {
 func (c *ccalc) fluidToSolid(x float64, below *forward.Layer) {
 	r := x * c.R
 	rhoF := below.Density.At(r) / c.rhoBar
-	g := c.st.Gravity(r) / c.g0
+	g := c.gravity(x)
 	s := complex(1/math.Max(cmplx.Abs(c.yf[0]), cmplx.Abs(c.yf[1])), 0)
 	y5, y6 := s*c.yf[0], s*c.yf[1]
 	c.y = [18]complex128{
@@ -406,7 +406,7 @@ func (c *ccalc) fluidToSolid(x float64, below *forward.Layer) {
 func (c *ccalc) solidToFluid(x float64) error {
 	r := x * c.R
 	rhoF := complex(c.layer.Density.At(r)/c.rhoBar, 0)
-	g := complex(c.st.Gravity(r)/c.g0, 0)
+	g := complex(c.gravity(x), 0)
 	var a, b [3]complex128
 	for j := range 3 {
 		y := c.y[6*j : 6*j+6]

@@ -273,6 +273,77 @@ func TestConvergence(t *testing.T) {
 	}
 }
 
+// TestDefaultTolAccuracy checks the claim behind DefaultTol: at the default
+// tolerance k2, h2 and l2 agree with an integration at 1e-12 to 2e-7
+// (absolute; the Love numbers are O(0.1–1)). Numerical self-consistency, no
+// outside source: the outside checks are TestKelvinSphere and TestPREM.
+func TestDefaultTolAccuracy(t *testing.T) {
+	for _, c := range []struct {
+		name string
+		m    forward.Model
+	}{
+		{"Kelvin", homogeneous(5500, 1.5e6, 5000, false)},
+		{"Earth-like", earthLike(1, false)},
+		{"PREM", premNoOcean(t)},
+		{"PREM with ocean", loadPREM(t)},
+		{"fluid centre", fluidCentre(false)},
+		{"solid centre, fluid outer core", fluidCentre(true)},
+	} {
+		s := solve(t, c.m)
+		k, h, l, err := Love(s, 2)
+		if err != nil {
+			t.Fatal(err)
+		}
+		kr, hr, lr, err := LoveTol(s, 2, 1e-12)
+		if err != nil {
+			t.Fatal(err)
+		}
+		for _, q := range []struct {
+			what      string
+			got, want float64
+		}{{"k2", k, kr}, {"h2", h, hr}, {"l2", l, lr}} {
+			if math.IsNaN(q.want) && math.IsNaN(q.got) {
+				continue // l of a fluid surface
+			}
+			if d := math.Abs(q.got - q.want); !(d <= 2e-7) {
+				t.Errorf("%s: %s = %.12f at DefaultTol, %.12f at 1e-12 (diff %.2g)", c.name, q.what, q.got, q.want, d)
+			}
+		}
+	}
+}
+
+// TestGravityCache checks the per-layer gravity polynomial of calc against
+// forward.Structure.Gravity (the closed forms it re-arranges) inside every
+// layer of PREM, of a self-consistent structure's quartic pieces and of the
+// thin-layer tabulated model.
+func TestGravityCache(t *testing.T) {
+	pr := solve(t, earthLike(1, false)).Profile(200)
+	tab, err := forward.FromTable(forward.Table{Radius: pr.Radius, Density: pr.Density, Vp: pr.Vp, Vs: pr.Vs})
+	if err != nil {
+		t.Fatal(err)
+	}
+	for _, m := range []forward.Model{loadPREM(t), earthLike(1, false), tab} {
+		s := solve(t, m)
+		c, err := newCalc(s, 2, DefaultTol)
+		if err != nil {
+			t.Fatal(err)
+		}
+		for i, l := range s.Model.Layers {
+			c.enter(i, i)
+			for _, f := range []float64{0, 0.3, 0.7, 1} {
+				r := l.Inner + f*(l.Outer-l.Inner)
+				if r == 0 {
+					continue
+				}
+				want := s.Gravity(r) / c.g0
+				if got := c.gravity(r / c.R); !(math.Abs(got-want) <= 1e-13*math.Abs(want)+1e-15) {
+					t.Fatalf("layer %d (%q) r = %g m: g/g0 = %.16g, structure %.16g", i, l.Name, r, got, want)
+				}
+			}
+		}
+	}
+}
+
 // vanishingRigidity is a uniform sphere whose vs = 4000 ((r − 0.53R)/(0.47R))²
 // m/s touches 0 at r = 0.53 R only, between the sample points of the
 // up-front check.

@@ -143,7 +143,9 @@ func (s *Solver) Integrate(f Func, a, b float64, y []float64) error {
 		errExp  = 1.0 / 5
 		betaExp = 0.04 // PI step-size stabilisation (Hairer et al. 1993, II.4; value from memory)
 	)
-	errOld := 1e-4
+	// The PI controller's factor safety·err^(−errExp+0.75β)·errOld^β is
+	// evaluated as one exponential of logarithms, keeping ln errOld.
+	lnErrOld := math.Log(1e-4)
 	rejectedLast := false
 	for {
 		if s.Stats.Steps+s.Stats.Rejected >= maxSteps {
@@ -176,14 +178,14 @@ func (s *Solver) Integrate(f Func, a, b float64, y []float64) error {
 			return nil
 		}
 		t += h
-		errNorm = math.Max(errNorm, 1e-10)
-		fac := safety * math.Pow(errNorm, -errExp+0.75*betaExp) * math.Pow(errOld, betaExp)
+		lnErr := math.Log(math.Max(errNorm, 1e-10))
+		fac := safety * math.Exp((-errExp+0.75*betaExp)*lnErr+betaExp*lnErrOld)
 		fac = math.Min(maxFac, math.Max(minFac, fac))
 		if rejectedLast {
 			fac = math.Min(fac, 1)
 		}
 		rejectedLast = false
-		errOld = errNorm
+		lnErrOld = lnErr
 		h = dir * math.Min(math.Abs(h*fac), hmax)
 	}
 }
