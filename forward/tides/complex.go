@@ -148,36 +148,51 @@ func PhaseLag(k complex128) float64 { return -cmplx.Phase(k) }
 // number k; +Inf for a purely elastic (real) response.
 func QualityFactor(k complex128) float64 { return cmplx.Abs(k) / math.Abs(imag(k)) }
 
-// ccalc is the complex counterpart of calc. Complex component m of the state
-// is stored as real part at 2m and imaginary part at 2m+1.
+// ccalc holds the complex moduli of the anelastic problem. Complex component
+// m of the integrated state is stored as real part at 2m and imaginary part
+// at 2m+1.
 type ccalc struct {
 	*calc
-	omega  float64 // rad/s
-	rh     []Rheology
-	solid  *ode.Solver // 36 components: three complex 6-vectors
-	fluid  *ode.Solver // 4 components: one complex 2-vector
-	y      [18]complex128
-	yf     [2]complex128
-	buf    [36]float64
-	fSolid ode.Func
-	fFluid ode.Func
+	omega float64 // rad/s
+	rh    []Rheology
 }
 
-func newCCalc(s *forward.Structure, n int, tol, omega float64, rh []Rheology) (*ccalc, error) {
+// newCCalc prepares the anelastic problem: the solid state as three complex
+// 6-vectors (36 real components), the fluid state as complex (y5, y6).
+func newCCalc(s *forward.Structure, n int, tol, omega float64, rh []Rheology) (*response[complex128], error) {
 	base, err := newScales(s, n)
 	if err != nil {
 		return nil, err
 	}
 	c := &ccalc{calc: base, omega: omega, rh: rh}
-	if c.solid, err = ode.NewSolver(36, tol, tol); err != nil {
+	solid, err := ode.NewSolver(36, tol, tol)
+	if err != nil {
 		return nil, err
 	}
-	if c.fluid, err = ode.NewSolver(4, fluidTol*tol, fluidTol*tol); err != nil {
+	fluid, err := ode.NewSolver(4, fluidTol*tol, fluidTol*tol)
+	if err != nil {
 		return nil, err
 	}
-	c.fSolid = c.derivSolid
-	c.fFluid = c.derivFluid
-	return c, nil
+	r := &response[complex128]{calc: base, rh: rh, moduli: c.cparams}
+	fSolid, fFluid := ode.Func(c.derivSolid), ode.Func(c.derivFluid)
+	var buf [36]float64
+	r.integrate = func(isFluid bool, a, b float64) error {
+		if isFluid {
+			f := [4]float64{real(r.yf[0]), imag(r.yf[0]), real(r.yf[1]), imag(r.yf[1])}
+			err := fluid.Integrate(fFluid, a, b, f[:])
+			r.yf = [2]complex128{complex(f[0], f[1]), complex(f[2], f[3])}
+			return err
+		}
+		for m, z := range r.y {
+			buf[2*m], buf[2*m+1] = real(z), imag(z)
+		}
+		err := solid.Integrate(fSolid, a, b, buf[:])
+		for m := range r.y {
+			r.y[m] = complex(buf[2*m], buf[2*m+1])
+		}
+		return err
+	}
+	return r, nil
 }
 
 // modulus returns the dimensionless complex shear modulus of the current
@@ -261,203 +276,4 @@ func (c *ccalc) derivFluid(x float64, y, dy []float64) {
 		dy[p] = a*y5 + y6
 		dy[2+p] = b*y5 + d*y6
 	}
-}
-
-func (c *ccalc) packSolid() {
-	for m, z := range c.y {
-		c.buf[2*m], c.buf[2*m+1] = real(z), imag(z)
-	}
-}
-
-func (c *ccalc) unpackSolid() {
-	for m := range c.y {
-		c.y[m] = complex(c.buf[2*m], c.buf[2*m+1])
-	}
-}
-
-func (c *ccalc) run() (k, h, l complex128, err error) {
-	nan := cmplx.NaN()
-	layers := c.st.Model.Layers
-	n := c.fn
-	// Start radius as in calc.run.
-	x1 := layers[0].Outer / c.R
-	x0 := math.Min(0.1*x1, math.Pow(1e-3, 2/n))
-	c.enter(0, 0)
-	if layers[0].Fluid {
-		c.yf = [2]complex128{complex(math.Pow(x0, n), 0), complex(2*(n-1)*math.Pow(x0, n-1), 0)}
-	} else {
-		c.startSolid(x0)
-	}
-	x := x0
-	// Segments of layers joined by continuous boundaries, as in calc.run
-	// (with equal rheologies).
-	for i, j := 0, 0; i < len(layers); i = j + 1 {
-		j = c.segmentEnd(i, c.rh)
-		c.enter(i, j)
-		xb := layers[j].Outer / c.R
-		if j == len(layers)-1 {
-			xb = 1
-		}
-		if i > 0 {
-			prev := layers[i-1].Fluid
-			switch {
-			case prev && !layers[i].Fluid:
-				c.fluidToSolid(x, &layers[i-1])
-			case !prev && layers[i].Fluid:
-				if err := c.solidToFluid(x); err != nil {
-					return nan, nan, nan, fmt.Errorf("tides: layer %d (%q): %w", i, layers[i].Name, err)
-				}
-			}
-		}
-		var ierr error
-		if layers[i].Fluid {
-			f := [4]float64{real(c.yf[0]), imag(c.yf[0]), real(c.yf[1]), imag(c.yf[1])}
-			ierr = c.fluid.Integrate(c.fFluid, x, xb, f[:])
-			c.yf = [2]complex128{complex(f[0], f[1]), complex(f[2], f[3])}
-		} else {
-			c.packSolid()
-			ierr = c.solid.Integrate(c.fSolid, x, xb, c.buf[:])
-			c.unpackSolid()
-		}
-		if c.bad != nil {
-			return nan, nan, nan, fmt.Errorf("tides: layer %d (%q): %w", c.cur, layers[c.cur].Name, c.bad)
-		}
-		if ierr != nil {
-			return nan, nan, nan, fmt.Errorf("tides: layer %d (%q): %w", c.cur, layers[c.cur].Name, ierr)
-		}
-		x = xb
-	}
-	if layers[len(layers)-1].Fluid {
-		y5 := complex(2*n+1, 0) / c.yf[1] * c.yf[0]
-		k, h, l = y5-1, y5, nan
-	} else {
-		var a [3][3]complex128
-		for j := range 3 {
-			a[0][j], a[1][j], a[2][j] = c.y[6*j+1], c.y[6*j+3], c.y[6*j+5]
-		}
-		cf, ok := solve3c(a, [3]complex128{0, 0, complex(2*n+1, 0)})
-		if !ok {
-			return nan, nan, nan, fmt.Errorf("tides: surface boundary conditions are singular")
-		}
-		var y1, y3, y5 complex128
-		for j := range 3 {
-			y1 += cf[j] * c.y[6*j]
-			y3 += cf[j] * c.y[6*j+2]
-			y5 += cf[j] * c.y[6*j+4]
-		}
-		k, h, l = y5-1, y1, y3
-	}
-	if cmplx.IsNaN(k) || cmplx.IsInf(k) || cmplx.IsNaN(h) || cmplx.IsInf(h) {
-		return nan, nan, nan, fmt.Errorf("tides: Love numbers not finite (k = %g, h = %g)", k, h)
-	}
-	return k, h, l, nil
-}
-
-// startSolid sets the three regular solid solutions at x0 (calc.startSolid
-// with complex moduli).
-func (c *ccalc) startSolid(x0 float64) {
-	rho, _, lam, mu := c.cparams(x0)
-	n, L := c.fn, c.L
-	cn, cL := complex(n, 0), complex(L, 0)
-	den := complex(4*n+2, 0)*mu + complex(2*n, 0)*(lam+mu)
-	fill := func(j int, p float64, u0, v0 complex128, p0 float64) {
-		xp := complex(math.Pow(x0, p), 0)
-		xp1 := complex(math.Pow(x0, p-1), 0)
-		cp := complex(p, 0)
-		U, V := u0*xp, v0*xp
-		y := c.y[6*j : 6*j+6]
-		y[0] = U
-		y[1] = (lam*((cp+2)*u0-cL*v0) + 2*mu*cp*u0) * xp1
-		y[2] = V
-		y[3] = mu * ((cp-1)*v0 + u0) * xp1
-		y[4] = complex(p0*math.Pow(x0, n), 0)
-		y[5] = complex(p0*(2*n+1)*math.Pow(x0, n-1), 0) - cmul(3*rho, U)
-	}
-	fill(0, n-1, cn, 1, 0)
-	A := -(2*mu + (lam+mu)*complex(n+3, 0)) / den
-	fill(1, n+1, cn*A+1, A, 0)
-	Ap := complex(-rho, 0) / den
-	fill(2, n+1, cn*Ap, Ap, 1)
-	if c.bad != nil {
-		for i := range c.y {
-			c.y[i] = cmplx.NaN()
-		}
-	}
-}
-
-// fluidToSolid replaces the fluid solution ending at x by the three solid
-// starting solutions (calc.fluidToSolid).
-func (c *ccalc) fluidToSolid(x float64, below *forward.Layer) {
-	r := x * c.R
-	rhoF := below.Density.At(r) / c.rhoBar
-	g := c.gravity(x)
-	s := complex(1/math.Max(cmplx.Abs(c.yf[0]), cmplx.Abs(c.yf[1])), 0)
-	y5, y6 := s*c.yf[0], s*c.yf[1]
-	c.y = [18]complex128{
-		y5 / complex(g, 0), 0, 0, 0, y5, y6,
-		1, complex(rhoF*g, 0), 0, 0, 0, complex(-3*rhoF, 0),
-		0, 0, 1, 0, 0, 0,
-	}
-}
-
-// solidToFluid combines the three solid solutions at x into the fluid
-// solution (calc.solidToFluid; the cross product is bilinear, so it is still
-// a null vector of the complex 2×3 system).
-func (c *ccalc) solidToFluid(x float64) error {
-	r := x * c.R
-	rhoF := complex(c.layer.Density.At(r)/c.rhoBar, 0)
-	g := complex(c.gravity(x), 0)
-	var a, b [3]complex128
-	for j := range 3 {
-		y := c.y[6*j : 6*j+6]
-		a[j] = y[3]
-		b[j] = y[1] - rhoF*(g*y[0]-y[4])
-	}
-	cf := [3]complex128{a[1]*b[2] - a[2]*b[1], a[2]*b[0] - a[0]*b[2], a[0]*b[1] - a[1]*b[0]}
-	var y5, y6 complex128
-	for j := range 3 {
-		y := c.y[6*j : 6*j+6]
-		y5 += cf[j] * y[4]
-		y6 += cf[j] * (y[5] - 3*rhoF*(y[4]/g-y[0]))
-	}
-	m := math.Max(cmplx.Abs(y5), cmplx.Abs(y6))
-	if !(m > 0) || math.IsInf(m, 0) {
-		return fmt.Errorf("solid–fluid boundary at r = %g m: degenerate interface conditions", r)
-	}
-	c.yf = [2]complex128{y5 / complex(m, 0), y6 / complex(m, 0)}
-	return nil
-}
-
-// solve3c solves the complex system a·c = b by Gaussian elimination with
-// partial pivoting.
-func solve3c(a [3][3]complex128, b [3]complex128) ([3]complex128, bool) {
-	for col := range 3 {
-		p := col
-		for r := col + 1; r < 3; r++ {
-			if cmplx.Abs(a[r][col]) > cmplx.Abs(a[p][col]) {
-				p = r
-			}
-		}
-		if a[p][col] == 0 {
-			return [3]complex128{}, false
-		}
-		a[col], a[p] = a[p], a[col]
-		b[col], b[p] = b[p], b[col]
-		for r := col + 1; r < 3; r++ {
-			f := a[r][col] / a[col][col]
-			for k := col; k < 3; k++ {
-				a[r][k] -= f * a[col][k]
-			}
-			b[r] -= f * b[col]
-		}
-	}
-	var x [3]complex128
-	for r := 2; r >= 0; r-- {
-		s := b[r]
-		for k := r + 1; k < 3; k++ {
-			s -= a[r][k] * x[k]
-		}
-		x[r] = s / a[r][r]
-	}
-	return x, true
 }

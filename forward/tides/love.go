@@ -161,29 +161,33 @@ type calc struct {
 	// perLayer ends a segment at every layer boundary (tests only: the
 	// reference against which the joined integration is checked).
 	perLayer bool
-	solid    *ode.Solver // 18 components: three 6-vectors
-	fluid    *ode.Solver // 2 components
-	y        [18]float64
-	yf       [2]float64
-	fSolid   ode.Func
-	fFluid   ode.Func
 	bad      error // first non-physical coefficient met by a right-hand side
 }
 
-func newCalc(s *forward.Structure, n int, tol float64) (*calc, error) {
+// newCalc prepares the elastic problem: real moduli, the solid state as
+// three real 6-vectors (18 components), the fluid state as (y5, y6).
+func newCalc(s *forward.Structure, n int, tol float64) (*response[float64], error) {
 	c, err := newScales(s, n)
 	if err != nil {
 		return nil, err
 	}
-	if c.solid, err = ode.NewSolver(18, tol, tol); err != nil {
+	solid, err := ode.NewSolver(18, tol, tol)
+	if err != nil {
 		return nil, err
 	}
-	if c.fluid, err = ode.NewSolver(2, fluidTol*tol, fluidTol*tol); err != nil {
+	fluid, err := ode.NewSolver(2, fluidTol*tol, fluidTol*tol)
+	if err != nil {
 		return nil, err
 	}
-	c.fSolid = c.derivSolid
-	c.fFluid = c.derivFluid
-	return c, nil
+	r := &response[float64]{calc: c, moduli: c.params}
+	fSolid, fFluid := ode.Func(c.derivSolid), ode.Func(c.derivFluid)
+	r.integrate = func(isFluid bool, a, b float64) error {
+		if isFluid {
+			return fluid.Integrate(fFluid, a, b, r.yf[:])
+		}
+		return solid.Integrate(fSolid, a, b, r.y[:])
+	}
+	return r, nil
 }
 
 // newScales returns a calc with the degree and the units of the
@@ -225,7 +229,13 @@ func continuous(a, b *forward.Layer) bool {
 // same reports whether p and q agree at r within contTol (relative).
 func same(p, q forward.Poly, r float64) bool {
 	u, v := p.At(r), q.At(r)
-	return math.Abs(u-v) <= contTol*math.Max(math.Abs(u), math.Abs(v))
+	// Plain comparisons (math.Max's NaN and ±0 handling is not needed: a
+	// NaN compares false, i.e. not continuous).
+	m := math.Abs(u)
+	if a := math.Abs(v); a > m {
+		m = a
+	}
+	return math.Abs(u-v) <= contTol*m
 }
 
 // segmentEnd returns the index of the last layer of the segment starting at
@@ -375,192 +385,4 @@ func (c *calc) derivFluid(x float64, y, dy []float64) {
 	q := 3 * rho / g
 	dy[0] = (q-(n+1)/x)*y[0] + y[1]
 	dy[1] = 2*(n-1)/x*q*y[0] + ((n-1)/x-q)*y[1]
-}
-
-func (c *calc) run() (k, h, l float64, err error) {
-	nan := math.NaN()
-	layers := c.st.Model.Layers
-	n := c.fn
-	// Start radius: regular solutions grow like x^(n−1) and the irregular ones
-	// decay outwards like x^−(n+2), so a start at x0 with leading-order
-	// solutions leaves a relative contamination of order x0^(2n+1).
-	x1 := layers[0].Outer / c.R
-	x0 := math.Min(0.1*x1, math.Pow(1e-3, 2/n))
-	c.enter(0, 0)
-	if layers[0].Fluid {
-		c.yf = [2]float64{math.Pow(x0, n), 2 * (n - 1) * math.Pow(x0, n-1)}
-	} else {
-		c.startSolid(x0)
-	}
-	x := x0
-	// Each pass integrates one segment i..j of layers joined by continuous
-	// boundaries; only the boundaries between segments need interface
-	// conditions (or restart the integrator).
-	for i, j := 0, 0; i < len(layers); i = j + 1 {
-		j = c.segmentEnd(i, nil)
-		c.enter(i, j)
-		xb := layers[j].Outer / c.R
-		if j == len(layers)-1 {
-			xb = 1
-		}
-		if i > 0 {
-			prev := layers[i-1].Fluid
-			switch {
-			case prev && !layers[i].Fluid:
-				c.fluidToSolid(x, &layers[i-1])
-			case !prev && layers[i].Fluid:
-				if err := c.solidToFluid(x); err != nil {
-					return nan, nan, nan, fmt.Errorf("tides: layer %d (%q): %w", i, layers[i].Name, err)
-				}
-			}
-		}
-		var ierr error
-		if layers[i].Fluid {
-			ierr = c.fluid.Integrate(c.fFluid, x, xb, c.yf[:])
-		} else {
-			ierr = c.solid.Integrate(c.fSolid, x, xb, c.y[:])
-		}
-		if c.bad != nil {
-			return nan, nan, nan, fmt.Errorf("tides: layer %d (%q): %w", c.cur, layers[c.cur].Name, c.bad)
-		}
-		if ierr != nil {
-			return nan, nan, nan, fmt.Errorf("tides: layer %d (%q): %w", c.cur, layers[c.cur].Name, ierr)
-		}
-		x = xb
-	}
-	// W(R) = 1 in units of g₀R; g(R) = g₀.
-	if layers[len(layers)-1].Fluid {
-		y5 := (2*n + 1) / c.yf[1] * c.yf[0]
-		k, h, l = y5-1, y5, nan
-	} else {
-		// Solve Σ_j c_j (y2, y4, y6)_j = (0, 0, 2n+1).
-		var a [3][3]float64
-		for j := range 3 {
-			a[0][j], a[1][j], a[2][j] = c.y[6*j+1], c.y[6*j+3], c.y[6*j+5]
-		}
-		cf, ok := solve3(a, [3]float64{0, 0, 2*n + 1})
-		if !ok {
-			return nan, nan, nan, fmt.Errorf("tides: surface boundary conditions are singular")
-		}
-		var y1, y3, y5 float64
-		for j := range 3 {
-			y1 += cf[j] * c.y[6*j]
-			y3 += cf[j] * c.y[6*j+2]
-			y5 += cf[j] * c.y[6*j+4]
-		}
-		k, h, l = y5-1, y1, y3
-	}
-	if math.IsNaN(k) || math.IsInf(k, 0) || math.IsNaN(h) || math.IsInf(h, 0) {
-		return nan, nan, nan, fmt.Errorf("tides: Love numbers not finite (k = %g, h = %g)", k, h)
-	}
-	return k, h, l, nil
-}
-
-// startSolid sets the three regular solid solutions at x0 (see the package
-// comment), in the dimensionless variables.
-func (c *calc) startSolid(x0 float64) {
-	rho, _, lam, mu := c.params(x0)
-	n, L := c.fn, c.L
-	den := (4*n+2)*mu + 2*n*(lam+mu)
-	// fill writes U = u0 x^p, V = v0 x^p with the stresses of a homogeneous
-	// medium, and P = p0 x^n, into solution j.
-	fill := func(j int, p, u0, v0, p0 float64) {
-		xp := math.Pow(x0, p)
-		xp1 := math.Pow(x0, p-1)
-		U, V := u0*xp, v0*xp
-		y := c.y[6*j : 6*j+6]
-		y[0] = U
-		y[1] = (lam*((p+2)*u0-L*v0) + 2*mu*p*u0) * xp1
-		y[2] = V
-		y[3] = mu * ((p-1)*v0 + u0) * xp1
-		P := p0 * math.Pow(x0, n)
-		y[4] = P
-		y[5] = p0*(2*n+1)*math.Pow(x0, n-1) - 3*rho*U
-	}
-	fill(0, n-1, n, 1, 0)
-	A := -(2*mu + (lam+mu)*(n+3)) / den
-	fill(1, n+1, n*A+1, A, 0)
-	Ap := -rho / den
-	fill(2, n+1, n*Ap, Ap, 1)
-	if c.bad != nil {
-		for i := range c.y {
-			c.y[i] = math.NaN()
-		}
-	}
-}
-
-// fluidToSolid replaces the solution of the fluid layer below, which ends at
-// x, by the three solid starting solutions (see the package comment).
-func (c *calc) fluidToSolid(x float64, below *forward.Layer) {
-	r := x * c.R
-	rhoF := below.Density.At(r) / c.rhoBar
-	g := c.gravity(x)
-	s := 1 / math.Max(math.Abs(c.yf[0]), math.Abs(c.yf[1]))
-	y5, y6 := s*c.yf[0], s*c.yf[1]
-	c.y = [18]float64{
-		y5 / g, 0, 0, 0, y5, y6,
-		1, rhoF * g, 0, 0, 0, -3 * rhoF,
-		0, 0, 1, 0, 0, 0,
-	}
-}
-
-// solidToFluid combines the three solid solutions at x into the single
-// fluid solution (see the package comment).
-func (c *calc) solidToFluid(x float64) error {
-	r := x * c.R
-	rhoF := c.layer.Density.At(r) / c.rhoBar
-	g := c.gravity(x)
-	var a, b [3]float64
-	for j := range 3 {
-		y := c.y[6*j : 6*j+6]
-		a[j] = y[3]
-		b[j] = y[1] - rhoF*(g*y[0]-y[4])
-	}
-	// Null vector of the 2×3 system: the cross product of its rows.
-	cf := [3]float64{a[1]*b[2] - a[2]*b[1], a[2]*b[0] - a[0]*b[2], a[0]*b[1] - a[1]*b[0]}
-	var y5, y6 float64
-	for j := range 3 {
-		y := c.y[6*j : 6*j+6]
-		y5 += cf[j] * y[4]
-		y6 += cf[j] * (y[5] - 3*rhoF*(y[4]/g-y[0]))
-	}
-	m := math.Max(math.Abs(y5), math.Abs(y6))
-	if !(m > 0) || math.IsInf(m, 0) {
-		return fmt.Errorf("solid–fluid boundary at r = %g m: degenerate interface conditions", r)
-	}
-	c.yf = [2]float64{y5 / m, y6 / m}
-	return nil
-}
-
-// solve3 solves a·c = b by Gaussian elimination with partial pivoting.
-func solve3(a [3][3]float64, b [3]float64) ([3]float64, bool) {
-	for col := range 3 {
-		p := col
-		for r := col + 1; r < 3; r++ {
-			if math.Abs(a[r][col]) > math.Abs(a[p][col]) {
-				p = r
-			}
-		}
-		if a[p][col] == 0 {
-			return [3]float64{}, false
-		}
-		a[col], a[p] = a[p], a[col]
-		b[col], b[p] = b[p], b[col]
-		for r := col + 1; r < 3; r++ {
-			f := a[r][col] / a[col][col]
-			for k := col; k < 3; k++ {
-				a[r][k] -= f * a[col][k]
-			}
-			b[r] -= f * b[col]
-		}
-	}
-	var x [3]float64
-	for r := 2; r >= 0; r-- {
-		s := b[r]
-		for k := r + 1; k < 3; k++ {
-			s -= a[r][k] * x[k]
-		}
-		x[r] = s / a[r][r]
-	}
-	return x, true
 }
