@@ -5,6 +5,7 @@ import (
 	"math"
 	"math/rand/v2"
 	"reflect"
+	"strconv"
 )
 
 // Param is one sampled coordinate.
@@ -59,17 +60,26 @@ func scaledString(d Dist, k float64) string {
 	if !(k > 0) || math.IsInf(k, 0) || k == 1 {
 		return d.String()
 	}
+	// Scaled values are rounded to 12 significant digits, so that a unit converted to SI and back
+	// (degrees → radians → degrees) prints as written, not as 119.99999999999999.
+	sc := func(v float64) float64 {
+		r, err := strconv.ParseFloat(strconv.FormatFloat(v*k, 'g', 12, 64), 64)
+		if err != nil {
+			return v * k
+		}
+		return r
+	}
 	switch v := d.(type) {
 	case Uniform:
-		return Uniform{Min: v.Min * k, Max: v.Max * k}.String()
+		return Uniform{Min: sc(v.Min), Max: sc(v.Max)}.String()
 	case Normal:
-		return Normal{Mu: v.Mu * k, Sigma: v.Sigma * k}.String()
+		return Normal{Mu: sc(v.Mu), Sigma: sc(v.Sigma)}.String()
 	case TruncNormal:
-		return TruncNormal{Mu: v.Mu * k, Sigma: v.Sigma * k, Min: v.Min * k, Max: v.Max * k}.String()
+		return TruncNormal{Mu: sc(v.Mu), Sigma: sc(v.Sigma), Min: sc(v.Min), Max: sc(v.Max)}.String()
 	case LogUniform:
-		return LogUniform{Min: v.Min * k, Max: v.Max * k}.String()
+		return LogUniform{Min: sc(v.Min), Max: sc(v.Max)}.String()
 	case Fixed:
-		return Fixed{Value: v.Value * k}.String()
+		return Fixed{Value: sc(v.Value)}.String()
 	case Categorical:
 		return v.String()
 	}

@@ -49,6 +49,20 @@ func TestSpaceBasics(t *testing.T) {
 	}
 }
 
+// A prior in a converted unit prints as written: degrees → radians → degrees is not exact in
+// floating point.
+func TestParamStringRoundsConversion(t *testing.T) {
+	deg := math.Pi / 180
+	u, err := NewUniform(10*deg, 120*deg)
+	if err != nil {
+		t.Fatal(err)
+	}
+	p := Param{Name: "quake_distance_deg", Unit: "deg", ToUnit: 1 / deg, Prior: u}
+	if got := p.String(); got != "quake_distance_deg ~ uniform(10, 120) deg" {
+		t.Errorf("got %q", got)
+	}
+}
+
 func TestSpaceLogPrior(t *testing.T) {
 	s := testSpace()
 	x := []float64{2e6, 3350, 3e4, 1e21, 1, 2050}
