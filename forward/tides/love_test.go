@@ -1,14 +1,12 @@
 package tides
 
 import (
-	"encoding/csv"
 	"math"
-	"os"
-	"strconv"
 	"strings"
 	"testing"
 
 	"plumb/forward"
+	"plumb/internal/prem"
 )
 
 // homogeneous returns a uniform sphere of radius 6371 km.
@@ -164,63 +162,22 @@ func TestOrdering(t *testing.T) {
 	}
 }
 
-// loadPREM builds the polynomial PREM from testdata/prem/prem_polynomials.csv
-// (coefficients in x = r/6371 km, g/cm³ and km/s; a copy of the loader in
-// package forward's tests).
+// loadPREM returns the polynomial PREM of the shared test data.
 func loadPREM(t testing.TB) forward.Model {
 	t.Helper()
-	f, err := os.Open("../../testdata/prem/prem_polynomials.csv")
+	m, err := prem.Load("../../testdata/prem/prem_polynomials.csv")
 	if err != nil {
 		t.Fatal(err)
-	}
-	defer f.Close()
-	rd := csv.NewReader(f)
-	rd.Comment = '#'
-	recs, err := rd.ReadAll()
-	if err != nil {
-		t.Fatal(err)
-	}
-	const a = 6371e3
-	num := func(s string) float64 {
-		v, err := strconv.ParseFloat(s, 64)
-		if err != nil {
-			t.Fatal(err)
-		}
-		return v
-	}
-	poly := func(cells []string) forward.Poly {
-		c := make([]float64, len(cells))
-		for i, s := range cells {
-			c[i] = 1000 * num(s) // g/cm³ → kg/m³, km/s → m/s
-		}
-		return forward.Poly{C: c, Scale: a}
-	}
-	var m forward.Model
-	for _, r := range recs[1:] {
-		m.Layers = append(m.Layers, forward.Layer{
-			Name:    r[0],
-			Inner:   1000 * num(r[1]),
-			Outer:   1000 * num(r[2]),
-			Fluid:   r[3] == "true",
-			Density: poly(r[4:8]),
-			Vp:      poly(r[8:12]),
-			Vs:      poly(r[12:16]),
-		})
 	}
 	return m
 }
 
-// premNoOcean replaces PREM's 3 km ocean by the upper-crust material below it,
-// as is usual for solid-Earth Love numbers (common practice, no source).
+// premNoOcean is PREM with its ocean replaced by the upper crust below it.
 func premNoOcean(t testing.TB) forward.Model {
-	m := loadPREM(t)
-	m.Layers = append([]forward.Layer(nil), m.Layers...)
-	top := &m.Layers[len(m.Layers)-1]
-	below := m.Layers[len(m.Layers)-2]
-	if !top.Fluid {
-		t.Fatalf("PREM top layer %q is not fluid", top.Name)
+	m, err := prem.WithoutOcean(loadPREM(t))
+	if err != nil {
+		t.Fatal(err)
 	}
-	top.Fluid, top.Density, top.Vp, top.Vs = false, below.Density, below.Vp, below.Vs
 	return m
 }
 

@@ -2,17 +2,16 @@ package modelfile
 
 import (
 	"bytes"
-	"encoding/csv"
 	"errors"
 	"math"
 	"math/rand/v2"
 	"os"
 	"path/filepath"
-	"strconv"
 	"strings"
 	"testing"
 
 	"plumb/forward"
+	"plumb/internal/prem"
 )
 
 const header = "radius_km,density_kg_m3,vp_km_s,vs_km_s\n"
@@ -148,41 +147,13 @@ func polyEqual(a, b forward.Poly) bool {
 	return true
 }
 
-// loadPREM builds the polynomial PREM (Dziewonski & Anderson 1981, Table 1)
-// from the coefficient table in testdata/prem (see the README there).
+// loadPREM returns the polynomial PREM (Dziewonski & Anderson 1981, Table 1) of the shared test
+// data (see testdata/prem/README.md).
 func loadPREM(t *testing.T) forward.Model {
 	t.Helper()
-	f, err := os.Open("../../testdata/prem/prem_polynomials.csv")
+	m, err := prem.Load("../../testdata/prem/prem_polynomials.csv")
 	if err != nil {
 		t.Fatal(err)
-	}
-	defer f.Close()
-	rd := csv.NewReader(f)
-	rd.Comment = '#'
-	recs, err := rd.ReadAll()
-	if err != nil {
-		t.Fatal(err)
-	}
-	num := func(s string) float64 {
-		v, err := strconv.ParseFloat(s, 64)
-		if err != nil {
-			t.Fatal(err)
-		}
-		return v
-	}
-	poly := func(cells []string) forward.Poly {
-		c := make([]float64, len(cells))
-		for i, s := range cells {
-			c[i] = 1000 * num(s) // g/cm³ → kg/m³, km/s → m/s
-		}
-		return forward.Poly{C: c, Scale: 6371e3}
-	}
-	var m forward.Model
-	for _, r := range recs[1:] {
-		m.Layers = append(m.Layers, forward.Layer{
-			Name: r[0], Inner: 1000 * num(r[1]), Outer: 1000 * num(r[2]), Fluid: r[3] == "true",
-			Density: poly(r[4:8]), Vp: poly(r[8:12]), Vs: poly(r[12:16]),
-		})
 	}
 	return m
 }
