@@ -6,7 +6,8 @@ import (
 )
 
 // BenchmarkLogDensity times one posterior evaluation of the demo problem (prior, model build,
-// closed-form structure, two observables): the sampler's hot path.
+// self-consistent structure, mass, moment of inertia, k2 and six seismic picks): the sampler's
+// hot path.
 func BenchmarkLogDensity(b *testing.B) {
 	path := filepath.Join("..", "runs", "demo", "config.yaml")
 	cfg, err := Load(path, nil)

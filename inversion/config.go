@@ -27,6 +27,8 @@ type Config struct {
 	Constraints ConstraintConfig `mapstructure:"constraints" json:"constraints" yaml:"constraints"`
 	// Tides sets the tidal forcing for the k2, h2 and tidal_q observables.
 	Tides TidesConfig `mapstructure:"tides" json:"tides" yaml:"tides"`
+	// Seismic holds seismic events and their travel-time picks.
+	Seismic SeismicConfig `mapstructure:"seismic" json:"seismic" yaml:"seismic"`
 	// Observations maps an observable key (unit in the name) to its measured value and 1σ.
 	Observations map[string]ObservationConfig `mapstructure:"observations" json:"observations" yaml:"observations"`
 	// Sampler sets the Markov chains.

@@ -28,6 +28,17 @@ func TestDemoRecoversTruth(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
+	// The quakes' true distances (runs/demo/README.md) must lie in their 90 % intervals too.
+	for _, p := range s.Parameters {
+		truth, ok := map[string]float64{"quake_1_distance_deg": 38, "quake_2_distance_deg": 64, "quake_3_distance_deg": 85}[p.Name]
+		if !ok {
+			continue
+		}
+		t.Logf("%s: median %.1f°, 90 %% interval [%.1f, %.1f]°, truth %g°", p.Name, *p.Q50, *p.Q05, *p.Q95, truth)
+		if !(*p.Q05 < truth && truth < *p.Q95) {
+			t.Errorf("%s: truth %g° outside the 90 %% interval [%g, %g]", p.Name, truth, *p.Q05, *p.Q95)
+		}
+	}
 	const truthCoreRadiusKm = 2050
 	found := false
 	for _, p := range s.Parameters {

@@ -165,22 +165,25 @@ func (p *Problem) planHydro() {
 	}
 }
 
-// checkShear: tidal observables need the rigidity of every layer that can be solid, so an EOS
-// layer that can be solid must then have a shear law (without one its μ would be 0 and every
-// solid model would be rejected, silently biasing the state posterior).
+// checkShear: tidal observables and seismic picks need the rigidity of every layer that can be
+// solid, so an EOS layer that can be solid must then have a shear law (without one its μ would
+// be 0: every solid model would be rejected by the tides, and S waves could not cross the layer,
+// silently biasing the posterior).
 func (p *Problem) checkShear(b *builder) error {
-	tidal := false
+	need := p.seis != nil
+	what := "seismic picks are given"
 	for _, o := range p.Observations {
-		k := o.Observable.Key
-		tidal = tidal || k == "k2" || k == "h2" || k == "tidal_q"
+		if k := o.Observable.Key; k == "k2" || k == "h2" || k == "tidal_q" {
+			need, what = true, "k2/h2 are observed"
+		}
 	}
-	if !tidal {
+	if !need {
 		return nil
 	}
 	for i, l := range p.layers {
 		canBeSolid := !l.liquid || l.stateParam >= 0
 		if l.eos != nil && l.eos.shear == "" && canBeSolid {
-			return b.errf(fmt.Sprintf("layers[%d].eos.shear", i), "missing: layer %q can be solid and k2/h2 are observed, so it needs a shear law", l.name)
+			return b.errf(fmt.Sprintf("layers[%d].eos.shear", i), "missing: layer %q can be solid and %s, so it needs a shear law", l.name, what)
 		}
 	}
 	return nil

@@ -12,6 +12,7 @@ import (
 func FuzzLoad(f *testing.F) {
 	f.Add(testConfig)
 	f.Add(eosConfig)
+	f.Add(seismicConfig)
 	f.Add("planet: {radius_km: 10}\nlayers: [{name: a, density_kg_m3: 1, vp_km_s: 1, vs_km_s: 0}]\n")
 	f.Add("layers:\n  - name: core\n    density_kg_m3: {inner: {prior: normal}, outer: 3}\n")
 	f.Add("observations: {mass_kg: {value: x, sigma: [1]}}\n")

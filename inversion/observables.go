@@ -5,6 +5,7 @@ import (
 	"math"
 
 	"plumb/forward"
+	"plumb/forward/seismic"
 	"plumb/forward/tides"
 )
 
@@ -29,7 +30,8 @@ func (o Observable) Predict(p *Problem, st *forward.Structure, x []float64) (flo
 }
 
 // evaluation is one model's structure with the results that several observables share (the
-// Love numbers serve k2, h2 and tidal_q), computed at most once.
+// Love numbers serve k2, h2 and tidal_q; a phase's first arrival serves every pick of its event
+// that uses it), computed at most once.
 type evaluation struct {
 	st      *forward.Structure
 	p       *Problem
@@ -37,6 +39,11 @@ type evaluation struct {
 	love    [3]complex128
 	loveErr error
 	loveOK  bool
+	// Seismic: the medium and the first-arrival time of each (event, phase), NaN until computed.
+	medium    *seismic.Medium
+	mediumErr error
+	arrival   []float64
+	arrBuf    []seismic.Arrival
 }
 
 // love2 returns the degree-2 Love numbers k, h, l (complex at a tidal period).

@@ -63,6 +63,8 @@ type Problem struct {
 	hydro bool
 	// period is the tidal forcing period (s); 0 for static elastic Love numbers.
 	period float64
+	// seis holds the seismic events and picks (nil without them).
+	seis *seismicPlan
 }
 
 // Observation is one datum with its Gaussian error, SI units.
@@ -111,6 +113,9 @@ func Build(c *Config, file string) (*Problem, error) {
 		return nil, err
 	}
 	if err := p.observations(b, c.Observations); err != nil {
+		return nil, err
+	}
+	if err := p.seismicObservations(b, c.Seismic); err != nil {
 		return nil, err
 	}
 	if err := p.checkShear(b); err != nil {

@@ -215,6 +215,34 @@ type forwardResult struct {
 	CentralPressurePa float64   `json:"central_pressure_pa"`
 	Layers            int       `json:"layers"`
 	Love              *loveJSON `json:"love,omitempty"`
+	// Core and TravelTimes are present with --phases.
+	Core        *coreJSON        `json:"core,omitempty"`
+	TravelTimes []travelTimeJSON `json:"travel_times,omitempty"`
+}
+
+// coreJSON gives the core boundaries the travel times were computed with.
+type coreJSON struct {
+	CMBRadiusKm float64 `json:"cmb_radius_km"`
+	ICBRadiusKm float64 `json:"icb_radius_km"` // 0: no inner core
+}
+
+// travelTimeJSON lists the arrivals of one phase at one distance, earliest first (empty when
+// the phase does not exist there).
+type travelTimeJSON struct {
+	Phase         string        `json:"phase"`
+	DistanceDeg   float64       `json:"distance_deg"`
+	SourceDepthKm float64       `json:"source_depth_km"`
+	Arrivals      []arrivalJSON `json:"arrivals"`
+}
+
+// arrivalJSON is one ray: travel time and ray parameter p = dT/dΔ (positive; a ray arriving the
+// long way round has major_arc set).
+type arrivalJSON struct {
+	TimeS               float64 `json:"time_s"`
+	RayParameterSPerDeg float64 `json:"ray_parameter_s_per_deg"`
+	First               bool    `json:"first"`
+	MajorArc            bool    `json:"major_arc,omitempty"`
+	BottomRadiusKm      float64 `json:"bottom_radius_km"`
 }
 
 // loveJSON holds Love numbers: static elastic ones, and with a forcing period the complex k
@@ -235,6 +263,7 @@ func forwardCmd() *cobra.Command {
 	var asJSON bool
 	var perLayer, degree int
 	var periodH float64
+	var tt travelTimeFlags
 	c := &cobra.Command{
 		Use:   "forward --model FILE",
 		Short: "Evaluate one interior model (tabulated CSV or layered YAML)",
@@ -263,6 +292,11 @@ func forwardCmd() *cobra.Command {
 					return inputError{fmt.Errorf("%s: Love numbers: %w", model, err)}
 				}
 				r.Love = lv
+			}
+			if len(tt.phases) > 0 {
+				if r.Core, r.TravelTimes, err = tt.compute(cmd, st); err != nil {
+					return err
+				}
 			}
 			if profile != "" {
 				if err := writeProfile(profile, st.Profile(perLayer)); err != nil {
@@ -299,10 +333,27 @@ func forwardCmd() *cobra.Command {
 					fmt.Fprintf(tw, "k at %g h (Maxwell where a viscosity is given)\t%.6g %+.3gi  Q %s\n", *lv.PeriodH, *lv.KReal, *lv.KImag, q)
 				}
 			}
+			if r.Core != nil {
+				fmt.Fprintf(tw, "core–mantle boundary\t%.6g km (inner-core boundary %.6g km)\n", r.Core.CMBRadiusKm, r.Core.ICBRadiusKm)
+			}
+			for _, t := range r.TravelTimes {
+				if len(t.Arrivals) == 0 {
+					fmt.Fprintf(tw, "%s at %g°, depth %g km\tno arrival\n", t.Phase, t.DistanceDeg, t.SourceDepthKm)
+				}
+				for _, a := range t.Arrivals {
+					first := ""
+					if a.First {
+						first = "  (first)"
+					}
+					fmt.Fprintf(tw, "%s at %g°, depth %g km\t%.3f s  p %.4f s/deg%s\n", t.Phase, t.DistanceDeg, t.SourceDepthKm,
+						a.TimeS, a.RayParameterSPerDeg, first)
+				}
+			}
 			return tw.Flush()
 		},
 	}
 	f := c.Flags()
+	tt.register(f)
 	f.StringVar(&model, "model", "", "model file: tabulated .csv, or layered .yaml/.toml")
 	f.BoolVar(&asJSON, "json", false, "print JSON")
 	f.StringVar(&profile, "profile", "", "also write the solved radius/density/vp/vs/g/P profile to this CSV file")

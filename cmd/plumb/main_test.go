@@ -179,6 +179,10 @@ func TestBadInput(t *testing.T) {
 			[]string{"dr.csv", "line 5", "radius"}},
 		{"csv missing", []string{"forward", "--model", filepath.Join(dir, "none.csv")}, []string{"none.csv"}},
 		{"no model flag", []string{"forward"}, []string{"--model"}},
+		{"unknown phase", []string{"forward", "--model", write(t, dir, "tp.csv", tableCSV), "--phases", "P,PxP", "--distances-deg", "30"}, []string{"PxP"}},
+		{"phases without distances", []string{"forward", "--model", write(t, dir, "td.csv", tableCSV), "--phases", "P"}, []string{"--distances-deg"}},
+		{"distance beyond 180", []string{"forward", "--model", write(t, dir, "tb.csv", tableCSV), "--phases", "P", "--distances-deg", "200"}, []string{"--distances-deg", "200"}},
+		{"source below the mantle", []string{"forward", "--model", write(t, dir, "ts.csv", tableCSV), "--phases", "P", "--distances-deg", "30", "--depth-km", "1500"}, []string{"depth"}},
 		{"unknown flag", []string{"run", good, "--sede", "3"}, []string{"sede"}},
 		{"missing argument", []string{"run"}, []string{"arg"}},
 		{"resume not a run", []string{"resume", dir}, []string{"not a run folder"}},
@@ -289,5 +293,53 @@ func TestForwardPeriod(t *testing.T) {
 	}
 	if code, _, _ := plumb(t, "forward", "--model", visc, "--period-h", "24"); code != 0 {
 		t.Errorf("table output with a period: exit %d", code)
+	}
+}
+
+// plumb forward --phases on the two-layer table (uniform mantle, vp 8 km/s, core radius 1000 km,
+// radius 2000 km): direct P rays are chords, T = 2R sin(Δ/2)/v and p = dT/dΔ = R cos(Δ/2)/v, and
+// PcP follows the law of cosines, T = 2√(R² + c² − 2Rc cos(Δ/2))/v (elementary geometry of
+// straight rays; the ray tracer itself is checked in forward/seismic).
+func TestForwardTravelTimes(t *testing.T) {
+	dir := t.TempDir()
+	m := write(t, dir, "m.csv", tableCSV)
+	code, stdout, stderr := plumb(t, "forward", "--model", m, "--json", "--degree", "0",
+		"--phases", "P,PcP,S", "--distances-deg", "30,60", "--depth-km", "0")
+	if code != 0 {
+		t.Fatalf("exit %d: %s", code, stderr)
+	}
+	var r forwardResult
+	if err := json.Unmarshal([]byte(stdout), &r); err != nil {
+		t.Fatal(err)
+	}
+	if r.Core == nil || r.Core.CMBRadiusKm != 1000 || r.Core.ICBRadiusKm != 0 {
+		t.Fatalf("core %+v, want the density jump at 1000 km and no inner core", r.Core)
+	}
+	if len(r.TravelTimes) != 6 {
+		t.Fatalf("%d travel-time entries, want 6 (3 phases × 2 distances)", len(r.TravelTimes))
+	}
+	R, c, vp, vs := 2000e3, 1000e3, 8000.0, 4500.0
+	deg := math.Pi / 180
+	for _, tt := range r.TravelTimes {
+		if tt.SourceDepthKm != 0 || len(tt.Arrivals) == 0 || !tt.Arrivals[0].First {
+			t.Fatalf("%+v: want arrivals, the first marked", tt)
+		}
+		h := tt.DistanceDeg * deg / 2
+		var wantT, wantP float64
+		switch tt.Phase {
+		case "P", "S":
+			v := map[string]float64{"P": vp, "S": vs}[tt.Phase]
+			wantT, wantP = 2*R*math.Sin(h)/v, R*math.Cos(h)/v*deg
+		case "PcP":
+			wantT = 2 * math.Sqrt(R*R+c*c-2*R*c*math.Cos(h)) / vp
+			wantP = -1 // checked by forward/seismic
+		}
+		a := tt.Arrivals[0]
+		if math.Abs(a.TimeS-wantT) > 1e-9*wantT {
+			t.Errorf("%s at %g°: %.9f s, want %.9f s", tt.Phase, tt.DistanceDeg, a.TimeS, wantT)
+		}
+		if wantP >= 0 && math.Abs(a.RayParameterSPerDeg-wantP) > 1e-7*wantP {
+			t.Errorf("%s at %g°: p %.9f s/deg, want %.9f", tt.Phase, tt.DistanceDeg, a.RayParameterSPerDeg, wantP)
+		}
 	}
 }
