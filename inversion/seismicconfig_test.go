@@ -99,25 +99,23 @@ func TestSeismicObservables(t *testing.T) {
 	}
 }
 
-// A model that cannot produce a picked phase (direct P picked at 170°, inside the shadow of a
-// 1600 km core) has zero likelihood: −Inf, never NaN or a panic.
-func TestSeismicNoArrivalIsRejected(t *testing.T) {
-	p := buildConfig(t, strings.Replace(seismicConfig, "distance_deg: 40", "distance_deg: 170", 1))
-	x := []float64{1600e3, 0, 55 * math.Pi / 180, 25e3, 12}
-	der := make([]float64, p.NumDerived())
-	if lp := p.LogDensity(x, der); !math.IsInf(lp, -1) {
-		t.Errorf("log density %g with P picked at 170° behind a 1600 km core, want −Inf", lp)
-	}
-}
-
-// A source below the sampled core–mantle boundary (allowed by a wide depth prior) is rejected
-// by the forward model: −Inf.
-func TestSeismicSourceBelowMantle(t *testing.T) {
-	p := buildConfig(t, strings.Replace(seismicConfig, "max: 60}", "max: 3000}", 1))
-	x := []float64{1600e3, 0, 55 * math.Pi / 180, 2500e3, 12}
-	der := make([]float64, p.NumDerived())
-	if lp := p.LogDensity(x, der); !math.IsInf(lp, -1) {
-		t.Errorf("log density %g for a source below the core–mantle boundary, want −Inf", lp)
+// Models that cannot explain a pick have zero likelihood — −Inf, never NaN or a panic: direct P
+// picked at 170°, inside the shadow of a 1600 km core; a source below the sampled core–mantle
+// boundary (allowed by a wide depth prior), which the forward model rejects.
+func TestSeismicImpossibleIsRejected(t *testing.T) {
+	for _, c := range []struct {
+		name, old, new string
+		depth          float64
+	}{
+		{"P in the core shadow", "distance_deg: 40", "distance_deg: 170", 25e3},
+		{"source below the mantle", "max: 60}", "max: 3000}", 2500e3},
+	} {
+		p := buildConfig(t, strings.Replace(seismicConfig, c.old, c.new, 1))
+		x := []float64{1600e3, 0, 55 * math.Pi / 180, c.depth, 12}
+		der := make([]float64, p.NumDerived())
+		if lp := p.LogDensity(x, der); !math.IsInf(lp, -1) {
+			t.Errorf("%s: log density %g, want −Inf", c.name, lp)
+		}
 	}
 }
 

@@ -2,6 +2,8 @@ package seismic
 
 import (
 	"testing"
+
+	"plumb/internal/prem"
 )
 
 // benchPhases and benchDists are the workload of BenchmarkArrivals: 10
@@ -16,7 +18,7 @@ var (
 const benchShell = 12.75e3
 
 func benchQuery(b *testing.B, depth float64) {
-	md, err := NewMediumShells(premContinental(b), 3480*km, 1221.5*km, benchShell)
+	md, err := NewMediumShells(prem.MustLoadWithoutOcean(b), 3480*km, 1221.5*km, benchShell)
 	if err != nil {
 		b.Fatal(err)
 	}
@@ -56,7 +58,7 @@ func BenchmarkArrivalsDepth(b *testing.B) { benchQuery(b, 100*km) }
 // BenchmarkNewMedium is the construction cost of the 500-shell PREM medium
 // (discretisation and the sampled tables).
 func BenchmarkNewMedium(b *testing.B) {
-	m := premContinental(b)
+	m := prem.MustLoadWithoutOcean(b)
 	for b.Loop() {
 		if _, err := NewMediumShells(m, 3480*km, 1221.5*km, benchShell); err != nil {
 			b.Fatal(err)
@@ -66,7 +68,7 @@ func BenchmarkNewMedium(b *testing.B) {
 
 // BenchmarkNewMediumDefault is the construction cost with the default shells.
 func BenchmarkNewMediumDefault(b *testing.B) {
-	m := premContinental(b)
+	m := prem.MustLoadWithoutOcean(b)
 	for b.Loop() {
 		if _, err := NewMedium(m, 3480*km, 1221.5*km); err != nil {
 			b.Fatal(err)
@@ -77,7 +79,7 @@ func BenchmarkNewMediumDefault(b *testing.B) {
 // BenchmarkModel is the whole per-model cost: construction of the 500-shell
 // medium, the sampled tables its phases need, and the 30 calls.
 func BenchmarkModel(b *testing.B) {
-	m := premContinental(b)
+	m := prem.MustLoadWithoutOcean(b)
 	phs := make([]Phase, len(benchPhases))
 	for i, n := range benchPhases {
 		phs[i] = mustPhase(b, n)
@@ -101,7 +103,7 @@ func BenchmarkModel(b *testing.B) {
 // BenchmarkTable is the cost of one family's sampled curve (built on the
 // first query of one of its phases) on the 500-shell PREM.
 func BenchmarkTable(b *testing.B) {
-	md, err := NewMediumShells(premContinental(b), 3480*km, 1221.5*km, benchShell)
+	md, err := NewMediumShells(prem.MustLoadWithoutOcean(b), 3480*km, 1221.5*km, benchShell)
 	if err != nil {
 		b.Fatal(err)
 	}

@@ -13,31 +13,11 @@ const (
 	km  = 1e3           // km → m
 )
 
-// loadPREM returns PREM from the shared test data.
-func loadPREM(t testing.TB) forward.Model {
-	t.Helper()
-	m, err := prem.Load("../../testdata/prem/prem_polynomials.csv")
-	if err != nil {
-		t.Fatal(err)
-	}
-	return m
-}
-
-// premContinental is PREM with its 3 km ocean replaced by the upper crust below it, so that S
-// waves reach a surface receiver (travel-time tables are built for a continental crust).
-func premContinental(t testing.TB) forward.Model {
-	m, err := prem.WithoutOcean(loadPREM(t))
-	if err != nil {
-		t.Fatal(err)
-	}
-	return m
-}
-
 // premMedium builds the continental PREM medium with the default shells and
 // the published core radii (3480 km, 1221.5 km; Dziewonski & Anderson 1981).
 func premMedium(t testing.TB) *Medium {
 	t.Helper()
-	md, err := NewMedium(premContinental(t), 3480*km, 1221.5*km)
+	md, err := NewMedium(prem.MustLoadWithoutOcean(t), 3480*km, 1221.5*km)
 	if err != nil {
 		t.Fatal(err)
 	}

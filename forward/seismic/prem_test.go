@@ -3,6 +3,8 @@ package seismic
 import (
 	"math"
 	"testing"
+
+	"plumb/internal/prem"
 )
 
 // Travel times of PREM (Dziewonski & Anderson 1981) for a surface source,
@@ -83,7 +85,7 @@ func TestPREMShadowAndCaustic(t *testing.T) {
 // FindCore on PREM returns its CMB (largest density jump) and ICB (solid
 // under fluid), 3480 and 1221.5 km (Dziewonski & Anderson 1981).
 func TestFindCore(t *testing.T) {
-	cmb, icb := FindCore(loadPREM(t))
+	cmb, icb := FindCore(prem.MustLoad(t))
 	if cmb != 3480*km || icb != 1221.5*km {
 		t.Errorf("FindCore(PREM) = %g, %g m; want 3480e3, 1221.5e3", cmb, icb)
 	}
@@ -179,7 +181,7 @@ func match(as []Arrival, a Arrival) (Arrival, bool) {
 // curvature tolerance (the misfit falls as the square of the thickness), and
 // the default against uniform 1 km shells (the error of the default).
 func TestConvergence(t *testing.T) {
-	m := premContinental(t)
+	m := prem.MustLoadWithoutOcean(t)
 	build := func(h, tol float64) *Medium {
 		md, err := newMediumShells(m, 3480*km, 1221.5*km, h, tol)
 		if err != nil {
@@ -222,7 +224,7 @@ func TestConvergence(t *testing.T) {
 // and SKS have no arrival, while S turning above it and P phases are
 // unchanged.
 func TestLiquidLowermostMantle(t *testing.T) {
-	m := premContinental(t)
+	m := prem.MustLoadWithoutOcean(t)
 	m.Layers = append(m.Layers[:0:0], m.Layers...)
 	var found bool
 	for i := range m.Layers {
@@ -262,7 +264,7 @@ func TestLiquidLowermostMantle(t *testing.T) {
 	if a := arrivals(t, ref, "SKS", 100*deg, 0); len(a) == 0 {
 		t.Error("no SKS at 100° in PREM")
 	}
-	noIC, err := NewMedium(premContinental(t), 3480*km, 0)
+	noIC, err := NewMedium(prem.MustLoadWithoutOcean(t), 3480*km, 0)
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -277,7 +279,7 @@ func TestLiquidLowermostMantle(t *testing.T) {
 		t.Error("no PKP at 180° without inner core")
 	}
 	// With the ocean, S from a surface source is impossible (fluid surface).
-	ocean, err := NewMedium(loadPREM(t), 3480*km, 1221.5*km)
+	ocean, err := NewMedium(prem.MustLoad(t), 3480*km, 1221.5*km)
 	if err != nil {
 		t.Fatal(err)
 	}

@@ -57,6 +57,20 @@ func randomModel(rng *rand.Rand) (forward.Model, float64, float64) {
 	return m, cmb, icb
 }
 
+// randomMedium draws random models until one is valid and returns its medium (50 km shells)
+// and core–mantle boundary radius.
+func randomMedium(rng *rand.Rand) (*Medium, float64) {
+	for {
+		m, cmb, icb := randomModel(rng)
+		if m.Validate() != nil {
+			continue
+		}
+		if md, err := NewMediumShells(m, cmb, icb, 50e3); err == nil {
+			return md, cmb
+		}
+	}
+}
+
 // Random layered models (fixed seed): every phase at many distances and
 // depths returns no error, finite non-negative times ordered by time, and
 // each ray parameter reproduces its angle through the integrals. A
@@ -65,17 +79,10 @@ func randomModel(rng *rand.Rand) (forward.Model, float64, float64) {
 func TestRandomModels(t *testing.T) {
 	rng := rand.New(rand.NewPCG(1, 2))
 	var buf []Arrival
-	models, count := 0, 0
-	for models < 40 {
-		m, cmb, icb := randomModel(rng)
-		if m.Validate() != nil {
-			continue
-		}
-		md, err := NewMediumShells(m, cmb, icb, 50e3)
-		if err != nil {
-			continue
-		}
-		models++
+	const models = 40
+	count := 0
+	for model := range models {
+		md, cmb := randomMedium(rng)
 		for i := 1; i < len(phases); i++ {
 			ph := Phase{id: uint8(i)}
 			sp, _ := ph.spec()
@@ -85,18 +92,19 @@ func TestRandomModels(t *testing.T) {
 				}
 				src := md.newSource(depth)
 				for dd := 0.0; dd <= 180; dd += 7.5 {
+					var err error
 					buf, err = md.Arrivals(buf[:0], ph, dd*deg, depth)
 					if err != nil {
-						t.Fatalf("model %d %s at %g°, depth %g km: %v", models, ph, dd, depth/km, err)
+						t.Fatalf("model %d %s at %g°, depth %g km: %v", model, ph, dd, depth/km, err)
 					}
 					for k, a := range buf {
 						count++
 						if !finite(a.Time) || a.Time < 0 || !finite(a.RayParam) || a.RayParam < 0 || math.IsNaN(a.DAngleDP) || (k > 0 && a.Time < buf[k-1].Time) {
-							t.Fatalf("model %d %s at %g°: bad arrival %+v", models, ph, dd, a)
+							t.Fatalf("model %d %s at %g°: bad arrival %+v", model, ph, dd, a)
 						}
 						r, _, ok := md.eval(sp, &src, a.RayParam)
 						if !ok || math.Abs(r.d-a.Angle) > 1e-7 {
-							t.Errorf("model %d %s at %g°, depth %g km: Δ(p) = %.9g, angle %.9g", models, ph, dd, depth/km, r.d, a.Angle)
+							t.Errorf("model %d %s at %g°, depth %g km: Δ(p) = %.9g, angle %.9g", model, ph, dd, depth/km, r.d, a.Angle)
 						}
 					}
 				}
@@ -121,17 +129,10 @@ func TestRandomModelsComplete(t *testing.T) {
 	const N = 20000
 	ps, ds, ts := make([]float64, N+1), make([]float64, N+1), make([]float64, N+1)
 	oks := make([]bool, N+1)
-	models, roots, worstDT := 0, 0, 0.0
-	for models < 12 {
-		m, cmb, icb := randomModel(rng)
-		if m.Validate() != nil {
-			continue
-		}
-		md, err := NewMediumShells(m, cmb, icb, 50e3)
-		if err != nil {
-			continue
-		}
-		models++
+	const models = 12
+	roots, worstDT := 0, 0.0
+	for model := range models {
+		md, _ := randomMedium(rng)
 		for _, name := range []string{"P", "S", "PP", "PKP", "SKS", "PKIKP", "PcP"} {
 			ph := mustPhase(t, name)
 			sp, _ := ph.spec()
@@ -163,7 +164,7 @@ func TestRandomModelsComplete(t *testing.T) {
 					}
 					worstDT = math.Max(worstDT, best)
 					if best > 0.05 {
-						t.Errorf("model %d %s at %g°: grid root p ≈ %.4f, T ≈ %.3f s not found (nearest %.3g s)", models, name, dd, ps[i], T, best)
+						t.Errorf("model %d %s at %g°: grid root p ≈ %.4f, T ≈ %.3f s not found (nearest %.3g s)", model, name, dd, ps[i], T, best)
 					}
 				}
 			}

@@ -7,6 +7,7 @@ import (
 	"testing"
 
 	"plumb/forward"
+	"plumb/internal/prem"
 )
 
 // m2Period is the period of the principal lunar semidiurnal tide M2,
@@ -126,8 +127,8 @@ func TestElasticLimit(t *testing.T) {
 	}{
 		{"Earth-like", earthLike(1, false)},
 		{"fluid centre", fluidCentre(false)},
-		{"PREM", premNoOcean(t)},
-		{"PREM with ocean", loadPREM(t)},
+		{"PREM", prem.MustLoadWithoutOcean(t)},
+		{"PREM with ocean", prem.MustLoad(t)},
 	}
 	for _, c := range models {
 		s := solve(t, c.m)

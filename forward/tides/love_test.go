@@ -162,31 +162,12 @@ func TestOrdering(t *testing.T) {
 	}
 }
 
-// loadPREM returns the polynomial PREM of the shared test data.
-func loadPREM(t testing.TB) forward.Model {
-	t.Helper()
-	m, err := prem.Load("../../testdata/prem/prem_polynomials.csv")
-	if err != nil {
-		t.Fatal(err)
-	}
-	return m
-}
-
-// premNoOcean is PREM with its ocean replaced by the upper crust below it.
-func premNoOcean(t testing.TB) forward.Model {
-	m, err := prem.WithoutOcean(loadPREM(t))
-	if err != nil {
-		t.Fatal(err)
-	}
-	return m
-}
-
 // Elastic degree-2 Love numbers of PREM (Dziewonski & Anderson 1981) without
 // ocean, as quoted in the tidal literature: k2 ≈ 0.30, h2 ≈ 0.60–0.61,
 // l2 ≈ 0.084 (from memory). Checked to within 1 % of k2 = 0.30, inside
 // [0.60, 0.61] for h2 and within 2 % of 0.084 for l2.
 func TestPREM(t *testing.T) {
-	k, h, l := love(t, premNoOcean(t), 2)
+	k, h, l := love(t, prem.MustLoadWithoutOcean(t), 2)
 	t.Logf("PREM (no ocean): k2 = %.5f, h2 = %.5f, l2 = %.5f", k, h, l)
 	checkRel(t, "PREM k2", k, 0.30, 0.01)
 	if h < 0.60 || h > 0.61 {
@@ -196,26 +177,36 @@ func TestPREM(t *testing.T) {
 
 	// With the global ocean as a static fluid the surface follows the
 	// equipotential (h = 1 + k, Saito 1974) and the ocean's load raises k2.
-	ko, ho, lo := love(t, loadPREM(t), 2)
+	ko, ho, lo := love(t, prem.MustLoad(t), 2)
 	if math.Abs(ho-(1+ko)) > 1e-12 || !math.IsNaN(lo) || !(ko > k) {
 		t.Errorf("PREM with ocean: k2 = %.5f, h2 = %.5f, l2 = %g; want h2 = 1 + k2, l2 NaN, k2 > %.5f", ko, ho, lo, k)
+	}
+}
+
+// namedModel is a test model with a label.
+type namedModel struct {
+	name string
+	m    forward.Model
+}
+
+// numericsModels are the models on which the integration's accuracy is checked: a nearly
+// incompressible uniform sphere, Earth-like layers, PREM with and without its ocean, and fluid
+// or solid centres under a mantle.
+func numericsModels(t testing.TB) []namedModel {
+	return []namedModel{
+		{"Kelvin", homogeneous(5500, 1.5e6, 5000, false)},
+		{"Earth-like", earthLike(1, false)},
+		{"PREM", prem.MustLoadWithoutOcean(t)},
+		{"PREM with ocean", prem.MustLoad(t)},
+		{"fluid centre", fluidCentre(false)},
+		{"solid centre, fluid outer core", fluidCentre(true)},
 	}
 }
 
 // Halving the tolerance changes k2 by less than 1e-7 (acceptance criterion of
 // the task; common practice, no source).
 func TestConvergence(t *testing.T) {
-	models := []struct {
-		name string
-		m    forward.Model
-	}{
-		{"Kelvin", homogeneous(5500, 1.5e6, 5000, false)},
-		{"Earth-like", earthLike(1, false)},
-		{"PREM", premNoOcean(t)},
-		{"PREM with ocean", loadPREM(t)},
-		{"fluid centre", fluidCentre(false)},
-	}
-	for _, c := range models {
+	for _, c := range numericsModels(t) {
 		s := solve(t, c.m)
 		for _, tol := range []float64{1e-6, DefaultTol, 1e-11} {
 			k1, _, _, err1 := LoveTol(s, 2, tol)
@@ -235,17 +226,7 @@ func TestConvergence(t *testing.T) {
 // (absolute; the Love numbers are O(0.1–1)). Numerical self-consistency, no
 // outside source: the outside checks are TestKelvinSphere and TestPREM.
 func TestDefaultTolAccuracy(t *testing.T) {
-	for _, c := range []struct {
-		name string
-		m    forward.Model
-	}{
-		{"Kelvin", homogeneous(5500, 1.5e6, 5000, false)},
-		{"Earth-like", earthLike(1, false)},
-		{"PREM", premNoOcean(t)},
-		{"PREM with ocean", loadPREM(t)},
-		{"fluid centre", fluidCentre(false)},
-		{"solid centre, fluid outer core", fluidCentre(true)},
-	} {
+	for _, c := range numericsModels(t) {
 		s := solve(t, c.m)
 		k, h, l, err := Love(s, 2)
 		if err != nil {
@@ -279,7 +260,7 @@ func TestGravityCache(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	for _, m := range []forward.Model{loadPREM(t), earthLike(1, false), tab} {
+	for _, m := range []forward.Model{prem.MustLoad(t), earthLike(1, false), tab} {
 		s := solve(t, m)
 		c, err := newCalc(s, 2, DefaultTol)
 		if err != nil {
@@ -362,7 +343,7 @@ func BenchmarkLove(b *testing.B) {
 
 // BenchmarkLovePREM computes k2, h2, l2 of PREM (13 layers, with ocean).
 func BenchmarkLovePREM(b *testing.B) {
-	s := solve(b, loadPREM(b))
+	s := solve(b, prem.MustLoad(b))
 	b.ReportAllocs()
 	for b.Loop() {
 		if _, _, _, err := Love(s, 2); err != nil {

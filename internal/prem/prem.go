@@ -13,7 +13,10 @@ import (
 	"encoding/csv"
 	"fmt"
 	"os"
+	"path/filepath"
+	"runtime"
 	"strconv"
+	"testing"
 
 	"plumb/forward"
 )
@@ -90,4 +93,31 @@ func WithoutOcean(m forward.Model) (forward.Model, error) {
 	top, below := &m.Layers[n-1], m.Layers[n-2]
 	top.Fluid, top.Density, top.Vp, top.Vs = false, below.Density, below.Vp, below.Vs
 	return m, nil
+}
+
+// File returns the path of the shared table, testdata/prem/prem_polynomials.csv at the module
+// root, located from this source file so that tests in any package find it.
+func File() string {
+	_, self, _, _ := runtime.Caller(0)
+	return filepath.Join(filepath.Dir(self), "..", "..", "testdata", "prem", "prem_polynomials.csv")
+}
+
+// MustLoad loads the shared table (File) and fails the test on error.
+func MustLoad(tb testing.TB) forward.Model {
+	tb.Helper()
+	m, err := Load(File())
+	if err != nil {
+		tb.Fatal(err)
+	}
+	return m
+}
+
+// MustLoadWithoutOcean is MustLoad followed by WithoutOcean.
+func MustLoadWithoutOcean(tb testing.TB) forward.Model {
+	tb.Helper()
+	m, err := WithoutOcean(MustLoad(tb))
+	if err != nil {
+		tb.Fatal(err)
+	}
+	return m
 }

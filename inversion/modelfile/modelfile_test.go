@@ -147,21 +147,10 @@ func polyEqual(a, b forward.Poly) bool {
 	return true
 }
 
-// loadPREM returns the polynomial PREM (Dziewonski & Anderson 1981, Table 1) of the shared test
-// data (see testdata/prem/README.md).
-func loadPREM(t *testing.T) forward.Model {
-	t.Helper()
-	m, err := prem.Load("../../testdata/prem/prem_polynomials.csv")
-	if err != nil {
-		t.Fatal(err)
-	}
-	return m
-}
-
 // WriteProfileCSV → read must reproduce every profile column bit for bit, and
 // the model read must be the one forward.FromTable builds from the profile.
 func TestProfileRoundTrip(t *testing.T) {
-	s, err := forward.Solve(loadPREM(t))
+	s, err := forward.Solve(prem.MustLoad(t))
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -221,7 +210,7 @@ func TestProfileRoundTrip(t *testing.T) {
 // within the linear-interpolation error (1e-3; the reference is the closed-form
 // polynomial model, Dziewonski & Anderson 1981).
 func TestTabulatedPREM(t *testing.T) {
-	s, err := forward.Solve(loadPREM(t))
+	s, err := forward.Solve(prem.MustLoad(t))
 	if err != nil {
 		t.Fatal(err)
 	}
