@@ -111,6 +111,21 @@ type SamplerConfig struct {
 	// Workers is the number of goroutines running chains (0: one per core). It does not change
 	// the output.
 	Workers int `mapstructure:"workers" json:"workers" yaml:"workers"`
+	// PriorOnly switches the likelihood off: the chains sample the prior (restricted to models
+	// whose observables can all be computed), and the predictions are the prior predictive.
+	PriorOnly bool `mapstructure:"prior_only" json:"prior_only,omitempty" yaml:"prior_only,omitempty"`
+	// Stop, when set, ends the run early at a checkpoint once every parameter has converged.
+	Stop *StopConfig `mapstructure:"stop" json:"stop,omitempty" yaml:"stop,omitempty"`
+}
+
+// StopConfig is the optional stopping rule: after warm-up, at every checkpoint, the run ends when
+// the rank-normalized split-R̂ of every continuous parameter is below RHatBelow and its bulk-ESS
+// above ESSAbove (or when the step budget runs out).
+type StopConfig struct {
+	// RHatBelow is the R̂ threshold (> 1; 1.01 is the common recommendation).
+	RHatBelow float64 `mapstructure:"rhat_below" json:"rhat_below" yaml:"rhat_below"`
+	// ESSAbove is the bulk-ESS threshold (> 0).
+	ESSAbove float64 `mapstructure:"ess_above" json:"ess_above" yaml:"ess_above"`
 }
 
 // OutputConfig sets the run folder.

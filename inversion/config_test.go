@@ -213,6 +213,12 @@ func TestConfigErrors(t *testing.T) {
 		{"unknown top-level key", func(s string) string { return s + "extras: 1\n" }, "", []string{`unknown key "extras"`}},
 		{"unknown sampler key", func(s string) string { return strings.Replace(s, "  seed: 11", "  seed: 11\n  sede: 3", 1) },
 			"", []string{"sampler", `"sede"`}},
+		{"stop R̂ not above 1", func(s string) string {
+			return strings.Replace(s, "  seed: 11", "  seed: 11\n  stop: {rhat_below: 0.99, ess_above: 400}", 1)
+		}, "", []string{"sampler.stop.rhat_below", "0.99"}},
+		{"stop ESS not positive", func(s string) string {
+			return strings.Replace(s, "  seed: 11", "  seed: 11\n  stop: {rhat_below: 1.01}", 1)
+		}, "", []string{"sampler.stop.ess_above"}},
 		{"unknown prior kind", func(s string) string { return strings.Replace(s, "prior: log_uniform", "prior: loguniformish", 1) },
 			"", []string{"layers[2].thickness_km.prior", "unknown prior kind", "loguniformish"}},
 		{"unknown prior key", func(s string) string {

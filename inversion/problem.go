@@ -65,6 +65,8 @@ type Problem struct {
 	period float64
 	// seis holds the seismic events and picks (nil without them).
 	seis *seismicPlan
+	// priorOnly drops the likelihood from LogDensity (sampler.prior_only).
+	priorOnly bool
 }
 
 // Observation is one datum with its Gaussian error, SI units.
@@ -129,6 +131,7 @@ func Build(c *Config, file string) (*Problem, error) {
 	if err := validateSampler(file, c); err != nil {
 		return nil, err
 	}
+	p.priorOnly = c.Sampler.PriorOnly
 	return p, nil
 }
 
@@ -363,6 +366,14 @@ func validateSampler(file string, c *Config) error {
 	case !(o.LogEverySeconds > 0):
 		return bad("output.log_every_s", "%g ≤ 0", o.LogEverySeconds)
 	}
+	if st := s.Stop; st != nil {
+		switch {
+		case !(st.RHatBelow > 1) || math.IsInf(st.RHatBelow, 0):
+			return bad("sampler.stop.rhat_below", "%g: want a threshold > 1 (e.g. 1.01)", st.RHatBelow)
+		case !(st.ESSAbove > 0) || math.IsInf(st.ESSAbove, 0):
+			return bad("sampler.stop.ess_above", "%g: want a positive bulk-ESS (e.g. 400)", st.ESSAbove)
+		}
+	}
 	return nil
 }
 
@@ -569,23 +580,36 @@ func (p *Problem) Solve(x []float64) (*forward.Structure, error) {
 }
 
 // LogDensity is the log posterior up to the evidence: log prior + Gaussian log likelihood
-// (normalised). It fills derived with the log prior, the log likelihood, the predictions (SI) and
-// the derived radii (m). A non-physical model returns −Inf.
+// (normalised), or the log prior alone in a prior-only run. It fills derived with the log prior,
+// the log likelihood, the predictions (SI) and the derived radii (m). A non-physical model — or
+// one for which an observable cannot be computed, such as a picked phase without an arrival —
+// returns −Inf.
 func (p *Problem) LogDensity(x, derived []float64) float64 {
+	lp, ll := p.LogParts(x, derived)
+	if p.priorOnly {
+		return lp
+	}
+	return lp + ll
+}
+
+// LogParts returns the log prior and the log likelihood at x and fills derived like LogDensity
+// (mcmc.Split: tempering raises the likelihood to a power). Outside the support, or for a
+// non-physical model, the log prior is −Inf.
+func (p *Problem) LogParts(x, derived []float64) (logPrior, logLik float64) {
 	lp := p.Space.LogPrior(x)
 	if math.IsInf(lp, -1) || math.IsNaN(lp) {
-		return math.Inf(-1)
+		return math.Inf(-1), 0
 	}
 	st, err := p.Solve(x)
 	if err != nil {
-		return math.Inf(-1)
+		return math.Inf(-1), 0
 	}
 	ll := 0.0
 	ev := &evaluation{st: st, p: p, x: x}
 	for i, o := range p.Observations {
 		v, err := o.Observable.eval(ev)
 		if err != nil || math.IsNaN(v) || math.IsInf(v, 0) {
-			return math.Inf(-1)
+			return math.Inf(-1), 0
 		}
 		z := (v - o.Value) / o.Sigma
 		ll += -0.5*z*z - math.Log(o.Sigma) - 0.5*math.Log(2*math.Pi)
@@ -600,8 +624,12 @@ func (p *Problem) LogDensity(x, derived []float64) float64 {
 			k++
 		}
 	}
-	return lp + ll
+	return lp, ll
 }
+
+// PriorOnly reports whether the problem ignores its likelihood (sampler.prior_only): the chains
+// then sample the prior, and the predictions are the prior predictive.
+func (p *Problem) PriorOnly() bool { return p.priorOnly }
 
 // Residuals returns (predicted − observed)/σ for each observation from a derived vector.
 func (p *Problem) Residuals(derived []float64) []float64 {

@@ -58,8 +58,11 @@ type Checkpoint struct {
 	NextPart int `json:"next_part"`
 	// Chains holds every chain's full state.
 	Chains []mcmc.State `json:"chains"`
-	// Complete is true once every chain has run all its sweeps.
+	// Complete is true once every chain has run all its sweeps, or the stopping rule has ended
+	// the run (Converged).
 	Complete bool `json:"complete"`
+	// Converged is true when the stopping rule (sampler.stop) ended the run at a checkpoint.
+	Converged bool `json:"converged,omitempty"`
 }
 
 // Options control how a run executes; none of them changes the draws.
@@ -173,6 +176,10 @@ type runState struct {
 	cols   *columns
 	meta   map[string]string
 	log    *slog.Logger
+	mon    *monitor
+	// diag is the latest convergence line for the progress reporter (nil before the first).
+	diag     atomic.Pointer[string]
+	lastDiag time.Time
 }
 
 func execute(ctx context.Context, dir string, opt Options) error {
@@ -251,6 +258,7 @@ func (rs *runState) restore() error {
 		}
 	}
 	rs.cp = cp
+	rs.mon = newMonitor(rs.prob, len(rs.chains))
 	ents, err := os.ReadDir(samples)
 	if err != nil {
 		return fmt.Errorf("samples folder: %w", err)
@@ -263,6 +271,9 @@ func (rs *runState) restore() error {
 			}
 		}
 	}
+	if err := rs.mon.addParts(rs.dir, rs.prob); err != nil {
+		return err
+	}
 	return rs.writeCheckpoint()
 }
 
@@ -273,7 +284,7 @@ func (rs *runState) writeCheckpoint() error {
 		rs.cp.Chains = append(rs.cp.Chains, ch.State())
 		done = done && ch.Done()
 	}
-	rs.cp.Complete = done
+	rs.cp.Complete = done || rs.cp.Converged
 	b, err := json.MarshalIndent(rs.cp, "", " ")
 	if err != nil {
 		return fmt.Errorf("encode checkpoint: %w", err)
@@ -322,6 +333,14 @@ func (rs *runState) loop(ctx context.Context, workers int, opt Options) error {
 	rs.log.Info("sampling", "dir", rs.dir, "chains", len(rs.chains), "workers", workers,
 		"parameters", rs.prob.Dim(), "observations", len(rs.prob.Observations))
 	for {
+		// Every chain advances to the same boundary, the next multiple of `every` after the
+		// least advanced chain: after an interruption mid-interval the chains realign there, so
+		// that the stopping rule always sees the chains at one common sweep.
+		minIter := rs.chains[0].Iter()
+		for _, ch := range rs.chains {
+			minIter = min(minIter, ch.Iter())
+		}
+		until := (minIter/every + 1) * every
 		bufs := make([][]draw, len(rs.chains))
 		jobs := make(chan int)
 		var wg sync.WaitGroup
@@ -330,7 +349,7 @@ func (rs *runState) loop(ctx context.Context, workers int, opt Options) error {
 			go func() {
 				defer wg.Done()
 				for c := range jobs {
-					bufs[c] = rs.advance(c, every, &stop, pr)
+					bufs[c] = rs.advance(c, until, &stop, pr)
 				}
 			}()
 		}
@@ -342,12 +361,18 @@ func (rs *runState) loop(ctx context.Context, workers int, opt Options) error {
 		if err := rs.writePart(bufs); err != nil {
 			return err
 		}
+		rs.checkConvergence(bufs, until)
 		if err := rs.writeCheckpoint(); err != nil {
 			return err
 		}
 		if rs.cp.Complete {
 			stopReport()
-			rs.log.Info("run complete", "dir", rs.dir)
+			if rs.cp.Converged {
+				rs.log.Info("run complete: every parameter met the stopping rule", "dir", rs.dir,
+					"rhat_below", rs.cfg.Sampler.Stop.RHatBelow, "ess_above", rs.cfg.Sampler.Stop.ESSAbove)
+			} else {
+				rs.log.Info("run complete", "dir", rs.dir)
+			}
 			return nil
 		}
 		if stop.Load() {
@@ -358,11 +383,40 @@ func (rs *runState) loop(ctx context.Context, workers int, opt Options) error {
 	}
 }
 
-// advance runs chain c to its next checkpoint boundary (a multiple of every sweeps), in chunks
-// so that progress can be reported and a stop request honoured promptly.
-func (rs *runState) advance(c int, every int64, stop *atomic.Bool, pr *progress) []draw {
+// checkConvergence adds the new draws to the monitor and, once every chain is past warm-up,
+// applies the stopping rule at this checkpoint (deterministically: it sees exactly the draws
+// written so far) and refreshes the progress line's diagnostics (without a rule at most every
+// 10 s of wall time, which affects only the display).
+func (rs *runState) checkConvergence(bufs [][]draw, until int64) {
+	for c, b := range bufs {
+		for _, d := range b {
+			rs.mon.add(c, d.index, d.x)
+		}
+	}
+	for _, ch := range rs.chains {
+		// Only at the common boundary (not after an interruption mid-interval), after warm-up.
+		if ch.Iter() <= rs.mc.Warmup || (ch.Iter() != until && !ch.Done()) {
+			return
+		}
+	}
+	rule := rs.cfg.Sampler.Stop
+	if rule == nil && time.Since(rs.lastDiag) < 10*time.Second {
+		return
+	}
+	rs.lastDiag = time.Now()
+	r, rn, e, en := rs.mon.diagnostics(rs.prob)
+	line := fmt.Sprintf("max R̂ %.3f (%s)  min ESS %.0f (%s)", r, rn, e, en)
+	rs.diag.Store(&line)
+	rs.log.Info("convergence", "max_rhat", fmt.Sprintf("%.4f", r), "of", rn, "min_ess_bulk", fmt.Sprintf("%.0f", e), "of_param", en)
+	if rule != nil && rs.mon.converged(rule) {
+		rs.cp.Converged = true
+	}
+}
+
+// advance runs chain c to the checkpoint boundary until, in chunks so that progress can be
+// reported and a stop request honoured promptly.
+func (rs *runState) advance(c int, until int64, stop *atomic.Bool, pr *progress) []draw {
 	ch := rs.chains[c]
-	until := (ch.Iter()/every + 1) * every
 	var out []draw
 	emit := func(i int64, x, der []float64, lp float64) {
 		out = append(out, draw{index: i, lp: lp, x: slices.Clone(x), der: slices.Clone(der)})
@@ -452,11 +506,15 @@ func (rs *runState) report(pr *progress, opt Options, done <-chan struct{}) {
 			return
 		case <-tick.C:
 			pct, rate, eta, acc := line()
+			diag := ""
+			if d := rs.diag.Load(); d != nil {
+				diag = *d
+			}
 			if opt.Live != nil {
-				fmt.Fprintf(opt.Live, "\r%5.1f %%  %8.0f draws/s  ETA %-10s acceptance %.2f ", pct, rate, eta, acc)
+				fmt.Fprintf(opt.Live, "\r%5.1f %%  %8.0f draws/s  ETA %-10s acceptance %.2f  %s ", pct, rate, eta, acc, diag)
 			} else {
 				rs.log.Info("progress", "percent", fmt.Sprintf("%.1f", pct), "draws_per_s", fmt.Sprintf("%.0f", rate),
-					"eta", eta.String(), "acceptance", fmt.Sprintf("%.3f", acc))
+					"eta", eta.String(), "acceptance", fmt.Sprintf("%.3f", acc), "diagnostics", diag)
 			}
 		}
 	}

@@ -186,6 +186,45 @@ func sortedRows(t *testing.T, b *store.Batch) map[[2]int64][]any {
 // bit-identical to an uninterrupted run with the same seed, and stops at the configured total.
 func TestResumeEqualsUninterrupted(t *testing.T) {
 	text := strings.Replace(strings.Replace(testConfig, "steps: 600", "steps: 6000", 1), "warmup_steps: 200", "warmup_steps: 1000", 1)
+	checkResumeEquals(t, text)
+}
+
+// With a stopping rule the run ends at the first checkpoint where every parameter has converged;
+// the rule sees exactly the draws written so far (rebuilt from the parts on resume), so an
+// interrupted and resumed run stops at the same checkpoint with the same rows.
+func TestStopRuleResumeEquals(t *testing.T) {
+	text := strings.Replace(strings.Replace(testConfig, "steps: 600", "steps: 20000", 1), "warmup_steps: 200", "warmup_steps: 1000", 1)
+	text = strings.Replace(text, "  seed: 11\n", "  seed: 11\n  stop: {rhat_below: 1.05, ess_above: 150}\n", 1)
+	dir := startRun(t, text, 2)
+	cp, err := ReadCheckpoint(dir)
+	if err != nil {
+		t.Fatal(err)
+	}
+	n := readSamples(t, dir).Len()
+	if !cp.Complete || !cp.Converged || n >= 20000 {
+		t.Fatalf("complete %v, converged %v, %d rows of 20000 possible: the rule did not stop the run", cp.Complete, cp.Converged, n)
+	}
+	s, err := Summarize(dir)
+	if err != nil {
+		t.Fatal(err)
+	}
+	for _, p := range s.Parameters {
+		if p.RHat != nil && p.ESSBulk != nil && strings.HasSuffix(p.Name, "_km") && p.Name != "mantle_outer_radius_km" {
+			if *p.RHat >= 1.05 || *p.ESSBulk <= 150 {
+				t.Errorf("%s: R̂ %.3f, bulk-ESS %.0f at the stop", p.Name, *p.RHat, *p.ESSBulk)
+			}
+		}
+	}
+	t.Logf("stopped after %d rows", n)
+	if got := checkResumeEquals(t, text); got != n {
+		t.Errorf("interrupted run kept %d rows, uninterrupted %d", got, n)
+	}
+}
+
+// checkResumeEquals runs text uninterrupted and again with repeated interruptions (and one lost
+// checkpoint) and requires identical rows; it returns the row count.
+func checkResumeEquals(t *testing.T, text string) int {
+	t.Helper()
 	want := sortedRows(t, readSamples(t, startRun(t, text, 2)))
 
 	path := writeConfig(t, "c.yaml", text)
@@ -243,6 +282,7 @@ func TestResumeEqualsUninterrupted(t *testing.T) {
 	if n := readSamples(t, dir).Len(); n != len(want) {
 		t.Errorf("resume of a complete run changed the row count to %d", n)
 	}
+	return len(want)
 }
 
 func TestResumeRefusesChangedConfig(t *testing.T) {
@@ -262,5 +302,42 @@ func TestResumeRefusesChangedConfig(t *testing.T) {
 	var ce *ConfigError
 	if err := Resume(context.Background(), dir, Options{}); !errors.As(err, &ce) || !strings.Contains(err.Error(), "changed") {
 		t.Errorf("resume with a changed config: %v", err)
+	}
+}
+
+// Prior-only mode samples the prior: with the likelihood off, the core radius (uniform on
+// [500, 2500] km) and the crust thickness (log-uniform on [10, 100] km, mean 90/ln 10 km) have
+// their prior means within 4 Monte Carlo standard errors (closed forms of the two
+// distributions); the log likelihood is still recorded, as the prior predictive's.
+func TestPriorOnly(t *testing.T) {
+	text := strings.Replace(strings.Replace(testConfig, "steps: 600", "steps: 20000", 1), "  seed: 11\n", "  seed: 11\n  prior_only: true\n", 1)
+	dir := startRun(t, text, 2)
+	s, err := Summarize(dir)
+	if err != nil {
+		t.Fatal(err)
+	}
+	want := map[string]float64{"core_outer_radius_km": 1500, "crust_thickness_km": 90 / math.Ln10}
+	for _, p := range s.Parameters {
+		w, ok := want[p.Name]
+		if !ok {
+			continue
+		}
+		mcse := *p.SD / math.Sqrt(*p.ESSBulk)
+		if math.Abs(*p.Mean-w) > 4*mcse {
+			t.Errorf("%s: mean %.2f, prior mean %.2f (MCSE %.2f)", p.Name, *p.Mean, w, mcse)
+		}
+		delete(want, p.Name)
+	}
+	if len(want) > 0 {
+		t.Fatalf("parameters missing from the summary: %v", want)
+	}
+	b := readSamples(t, dir)
+	ll, _ := b.Float64(ColLogLikelihood)
+	lpost, _ := b.Float64(ColLogPosterior)
+	lprior, _ := b.Float64(ColLogPrior)
+	for i := range ll {
+		if math.IsNaN(ll[i]) || math.IsInf(ll[i], 0) || lpost[i] != lprior[i] {
+			t.Fatalf("row %d: log likelihood %g, log posterior %g, log prior %g: want a finite likelihood and posterior = prior", i, ll[i], lpost[i], lprior[i])
+		}
 	}
 }
