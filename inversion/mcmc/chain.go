@@ -175,7 +175,13 @@ func NewChain(t Target, cfg Config, seed uint64, c int) (*Chain, error) {
 		return nil, err
 	}
 	s1, s2 := Seeds(seed, c)
-	ch := newChain(t, cfg, rand.NewPCG(s1, s2))
+	return startChain(t, cfg, rand.NewPCG(s1, s2), c)
+}
+
+// startChain starts chain c on the generator pcg at a valid point drawn by cfg.Init; cfg must be
+// valid. NewChain seeds pcg from (seed, c); tempered replicas seed it per replica.
+func startChain(t Target, cfg Config, pcg *rand.PCG, c int) (*Chain, error) {
+	ch := newChain(t, cfg, pcg)
 	ch.st.Chain = c
 	tries := cfg.MaxInitTries
 	if tries <= 0 {
