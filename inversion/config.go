@@ -13,6 +13,8 @@ import (
 
 	"github.com/spf13/viper"
 	"go.yaml.in/yaml/v3"
+
+	"plumb/inversion/mcmc"
 )
 
 // Config is a run configuration as written by the user (YAML or TOML). Quantities that may be
@@ -116,6 +118,28 @@ type SamplerConfig struct {
 	PriorOnly bool `mapstructure:"prior_only" json:"prior_only,omitempty" yaml:"prior_only,omitempty"`
 	// Stop, when set, ends the run early at a checkpoint once every parameter has converged.
 	Stop *StopConfig `mapstructure:"stop" json:"stop,omitempty" yaml:"stop,omitempty"`
+	// Tempering, when set, runs every chain as a ladder of tempered replicas (parallel
+	// tempering); only the β = 1 replica's draws are written.
+	Tempering *TemperingConfig `mapstructure:"tempering" json:"tempering,omitempty" yaml:"tempering,omitempty"`
+}
+
+// TemperingConfig sets parallel tempering: Replicas replicas per chain at inverse temperatures
+// from 1 (the posterior) down to 0 (the prior), with exchange moves between neighbours. The
+// interior temperatures start geometric in β down to BetaMin and adapt during warm-up toward
+// equal exchange acceptance unless AdaptLadder is false. The ladder also gives the evidence
+// (log marginal likelihood) by thermodynamic integration, reported by plumb summary.
+type TemperingConfig struct {
+	// Replicas is the number of replicas per chain (≥ 2; 6–12 is typical).
+	Replicas int `mapstructure:"replicas" json:"replicas" yaml:"replicas"`
+	// BetaMin is the smallest non-zero β of the initial ladder, in (0, 1) (default 1e-3).
+	BetaMin float64 `mapstructure:"beta_min" json:"beta_min,omitempty" yaml:"beta_min,omitempty"`
+	// AdaptLadder (default true) adapts the ladder during warm-up.
+	AdaptLadder *bool `mapstructure:"adapt_ladder" json:"adapt_ladder,omitempty" yaml:"adapt_ladder,omitempty"`
+}
+
+// temperConfig converts the config section to the sampler's settings.
+func (t *TemperingConfig) temperConfig() mcmc.TemperConfig {
+	return mcmc.TemperConfig{Replicas: t.Replicas, BetaMin: t.BetaMin, AdaptLadder: t.AdaptLadder == nil || *t.AdaptLadder}
 }
 
 // StopConfig is the optional stopping rule: after warm-up, at every checkpoint, the run ends when

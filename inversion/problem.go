@@ -366,6 +366,16 @@ func validateSampler(file string, c *Config) error {
 	case !(o.LogEverySeconds > 0):
 		return bad("output.log_every_s", "%g ≤ 0", o.LogEverySeconds)
 	}
+	if tp := s.Tempering; tp != nil {
+		switch {
+		case tp.Replicas < 2:
+			return bad("sampler.tempering.replicas", "%d: want at least 2 (β = 1 and the prior, β = 0)", tp.Replicas)
+		case tp.BetaMin != 0 && !(tp.BetaMin > 0 && tp.BetaMin < 1):
+			return bad("sampler.tempering.beta_min", "%g: want a number in (0, 1)", tp.BetaMin)
+		case s.PriorOnly:
+			return bad("sampler.tempering", "prior_only samples the prior directly: tempering has nothing to temper (remove one of them)")
+		}
+	}
 	if st := s.Stop; st != nil {
 		switch {
 		case !(st.RHatBelow > 1) || math.IsInf(st.RHatBelow, 0):

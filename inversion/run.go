@@ -37,6 +37,7 @@ const (
 	ConfigFile     = "config.yaml"
 	CheckpointFile = "checkpoint.json"
 	SamplesDir     = "samples"
+	StatsDir       = "sample_stats"
 	SummaryFile    = "summary.json"
 )
 
@@ -56,8 +57,11 @@ type Checkpoint struct {
 	Parts []string `json:"parts"`
 	// NextPart is the index of the next part file.
 	NextPart int `json:"next_part"`
-	// Chains holds every chain's full state.
+	// Chains holds every chain's full state (with tempering: the β = 1 replica's, for readers
+	// such as the summary; Tempered is then what a resume restores).
 	Chains []mcmc.State `json:"chains"`
+	// Tempered holds every tempered chain's full state (replicas, ladder, exchange counters).
+	Tempered []mcmc.TemperedState `json:"tempered,omitempty"`
 	// Complete is true once every chain has run all its sweeps, or the stopping rule has ended
 	// the run (Converged).
 	Complete bool `json:"complete"`
@@ -172,7 +176,7 @@ type runState struct {
 	prob   *Problem
 	mc     mcmc.Config
 	cp     *Checkpoint
-	chains []*mcmc.Chain
+	chains []sampler
 	cols   *columns
 	meta   map[string]string
 	log    *slog.Logger
@@ -213,6 +217,52 @@ func execute(ctx context.Context, dir string, opt Options) error {
 	return rs.loop(ctx, workers, opt)
 }
 
+// sampler is what the run loop drives: an mcmc.Chain, or an mcmc.Tempered ladder of them.
+type sampler interface {
+	Advance(until int64, stop func() bool, emit mcmc.Emit) int64
+	Iter() int64
+	Done() bool
+	Counts() mcmc.Counters
+}
+
+// newSampler starts chain c afresh.
+func (rs *runState) newSampler(c int) (sampler, error) {
+	seed := rs.cfg.Sampler.Seed
+	if t := rs.cfg.Sampler.Tempering; t != nil {
+		return mcmc.NewTempered(rs.prob, rs.mc, t.temperConfig(), seed, c)
+	}
+	return mcmc.NewChain(rs.prob, rs.mc, seed, c)
+}
+
+// restoreSamplers rebuilds the chains from a checkpoint.
+func (rs *runState) restoreSamplers(cp *Checkpoint) error {
+	n := rs.cfg.Sampler.Chains
+	if t := rs.cfg.Sampler.Tempering; t != nil {
+		if len(cp.Tempered) != n {
+			return fmt.Errorf("checkpoint has %d tempered chains, config %d", len(cp.Tempered), n)
+		}
+		for _, st := range cp.Tempered {
+			tp, err := mcmc.RestoreTempered(rs.prob, rs.mc, t.temperConfig(), st)
+			if err != nil {
+				return fmt.Errorf("restore checkpoint: %w", err)
+			}
+			rs.chains = append(rs.chains, tp)
+		}
+		return nil
+	}
+	if len(cp.Chains) != n {
+		return fmt.Errorf("checkpoint has %d chains, config %d", len(cp.Chains), n)
+	}
+	for _, st := range cp.Chains {
+		ch, err := mcmc.Restore(rs.prob, rs.mc, st)
+		if err != nil {
+			return fmt.Errorf("restore checkpoint: %w", err)
+		}
+		rs.chains = append(rs.chains, ch)
+	}
+	return nil
+}
+
 // restore loads the checkpoint (or starts the chains afresh) and removes sample parts written
 // after the last checkpoint, which a crash between part and checkpoint can leave behind.
 func (rs *runState) restore() error {
@@ -232,7 +282,7 @@ func (rs *runState) restore() error {
 		cp = &Checkpoint{SchemaVersion: SchemaVersion, PlumbVersion: Version, GoVersion: runtime.Version(),
 			ConfigSHA256: hash, Seed: rs.cfg.Sampler.Seed}
 		for c := range rs.cfg.Sampler.Chains {
-			ch, err := mcmc.NewChain(rs.prob, rs.mc, rs.cfg.Sampler.Seed, c)
+			ch, err := rs.newSampler(c)
 			if err != nil {
 				return fmt.Errorf("start chains: %w", err)
 			}
@@ -246,15 +296,8 @@ func (rs *runState) restore() error {
 			rs.log.Warn("Go version differs from the one the run started with; random streams may differ, so the resumed draws may not equal an uninterrupted run's",
 				"checkpoint", cp.GoVersion, "now", runtime.Version())
 		}
-		if len(cp.Chains) != rs.cfg.Sampler.Chains {
-			return fmt.Errorf("checkpoint has %d chains, config %d", len(cp.Chains), rs.cfg.Sampler.Chains)
-		}
-		for _, st := range cp.Chains {
-			ch, err := mcmc.Restore(rs.prob, rs.mc, st)
-			if err != nil {
-				return fmt.Errorf("restore checkpoint: %w", err)
-			}
-			rs.chains = append(rs.chains, ch)
+		if err := rs.restoreSamplers(cp); err != nil {
+			return err
 		}
 	}
 	rs.cp = cp
@@ -271,6 +314,17 @@ func (rs *runState) restore() error {
 			}
 		}
 	}
+	// The sample_stats parts carry the names of the sample parts they accompany.
+	stats := filepath.Join(rs.dir, StatsDir)
+	if ents, err := os.ReadDir(stats); err == nil {
+		for _, e := range ents {
+			if !slices.Contains(cp.Parts, e.Name()) {
+				if err := os.Remove(filepath.Join(stats, e.Name())); err != nil {
+					return fmt.Errorf("remove stale stats part: %w", err)
+				}
+			}
+		}
+	}
 	if err := rs.mon.addParts(rs.dir, rs.prob); err != nil {
 		return err
 	}
@@ -279,9 +333,19 @@ func (rs *runState) restore() error {
 
 func (rs *runState) writeCheckpoint() error {
 	rs.cp.Chains = rs.cp.Chains[:0]
+	rs.cp.Tempered = rs.cp.Tempered[:0]
 	done := true
 	for _, ch := range rs.chains {
-		rs.cp.Chains = append(rs.cp.Chains, ch.State())
+		switch c := ch.(type) {
+		case *mcmc.Chain:
+			rs.cp.Chains = append(rs.cp.Chains, c.State())
+		case *mcmc.Tempered:
+			ts := c.State()
+			cold := ts.Replicas[0]
+			cold.Chain, cold.Iter, cold.Draws = ts.Chain, ts.Iter, ts.Draws
+			rs.cp.Tempered = append(rs.cp.Tempered, ts)
+			rs.cp.Chains = append(rs.cp.Chains, cold)
+		}
 		done = done && ch.Done()
 	}
 	rs.cp.Complete = done || rs.cp.Converged
@@ -444,6 +508,9 @@ func (rs *runState) writePart(bufs [][]draw) error {
 	}
 	batch := rs.cols.batch(bufs)
 	name := store.PartName(rs.cp.NextPart)
+	if err := rs.writeStats(name); err != nil {
+		return err
+	}
 	path := filepath.Join(rs.dir, SamplesDir, name)
 	if err := store.WritePart(path, batch, rs.meta); err != nil {
 		return fmt.Errorf("write sample part: %w", err)

@@ -341,3 +341,56 @@ func TestPriorOnly(t *testing.T) {
 		}
 	}
 }
+
+// A tempered run writes only the β = 1 replica's draws, a sample_stats part per checkpoint (one
+// row per chain and replica; ladder from β = 1 to β = 0, non-decreasing cumulative counts), and
+// its summary reports a finite evidence with a positive error and exchange acceptances in (0, 1].
+// Interrupted and resumed, it gives the same rows (the tempered state is in the checkpoint).
+func TestTemperedRun(t *testing.T) {
+	text := strings.Replace(testConfig, "  seed: 11\n", "  seed: 11\n  tempering: {replicas: 4}\n", 1)
+	dir := startRun(t, text, 2)
+	if n := readSamples(t, dir).Len(); n != 600 {
+		t.Fatalf("%d sample rows, want 600 (2 chains × 600 steps / thin 2, β = 1 only)", n)
+	}
+	st, _, err := store.ReadParts(filepath.Join(dir, StatsDir))
+	if err != nil {
+		t.Fatal(err)
+	}
+	parts, _ := store.ListParts(filepath.Join(dir, StatsDir))
+	if want := len(parts) * 2 * 4; st.Len() != want {
+		t.Fatalf("%d sample_stats rows in %d parts, want %d", st.Len(), len(parts), want)
+	}
+	beta, _ := st.Float64(ColBeta)
+	rep, _ := st.Int64(ColReplica)
+	for i := range beta {
+		if (rep[i] == 0 && beta[i] != 1) || (rep[i] == 3 && beta[i] != 0) || !(beta[i] >= 0 && beta[i] <= 1) {
+			t.Fatalf("row %d: replica %d has β = %g", i, rep[i], beta[i])
+		}
+	}
+	s, err := Summarize(dir)
+	if err != nil {
+		t.Fatal(err)
+	}
+	e := s.Evidence
+	if e == nil || e.LogZ == nil || !(*e.StdErr > 0) || len(e.ExchangeAcceptance) != 3 {
+		t.Fatalf("evidence summary %+v", e)
+	}
+	for k, a := range e.ExchangeAcceptance {
+		if a == nil || !(*a > 0 && *a <= 1) {
+			t.Errorf("exchange acceptance of pair %d: %v", k, a)
+		}
+	}
+	t.Logf("log evidence %.3f ± %.3f", *e.LogZ, *e.StdErr)
+	long := strings.Replace(strings.Replace(text, "steps: 600", "steps: 3000", 1), "warmup_steps: 200", "warmup_steps: 600", 1)
+	checkResumeEquals(t, long)
+}
+
+func TestTemperingConfigErrors(t *testing.T) {
+	cases := []configEdit{
+		{"one replica", "  seed: 11\n", "  seed: 11\n  tempering: {replicas: 1}\n", "sampler.tempering.replicas"},
+		{"beta_min out of range", "  seed: 11\n", "  seed: 11\n  tempering: {replicas: 4, beta_min: 2}\n", "sampler.tempering.beta_min"},
+		{"with prior_only", "  seed: 11\n", "  seed: 11\n  prior_only: true\n  tempering: {replicas: 4}\n", "sampler.tempering"},
+		{"unknown key", "  seed: 11\n", "  seed: 11\n  tempering: {replicas: 4, rungs: 3}\n", "rungs"},
+	}
+	checkEdits(t, testConfig, cases)
+}

@@ -61,10 +61,27 @@ type ChainSummary struct {
 	InvalidProposals int64    `json:"invalid_proposals"`
 }
 
+// EvidenceSummary is the log marginal likelihood of a tempered run by thermodynamic integration
+// over its ladder (Lartillot & Philippe 2006), with the exchange acceptance between adjacent
+// replicas (post-warm-up, averaged over chains).
+type EvidenceSummary struct {
+	// LogZ and StdErr are the natural-log evidence and its standard error (Monte Carlo and
+	// quadrature error combined); null with Error set when it cannot be computed.
+	LogZ   *float64 `json:"log_evidence"`
+	StdErr *float64 `json:"log_evidence_std_err"`
+	Error  string   `json:"error,omitempty"`
+	// Replicas is the ladder length; ExchangeAcceptance[k] is that of replicas (k, k+1).
+	Replicas           int        `json:"replicas"`
+	ExchangeAcceptance []*float64 `json:"exchange_acceptance"`
+}
+
 // Summary is a run's posterior summary, as printed by `plumb summary` and saved as summary.json.
 type Summary struct {
 	Planet       string               `json:"planet"`
 	Complete     bool                 `json:"complete"`
+	Converged    bool                 `json:"stopped_by_rule,omitempty"`
+	PriorOnly    bool                 `json:"prior_only,omitempty"`
+	Evidence     *EvidenceSummary     `json:"evidence,omitempty"`
 	Draws        int                  `json:"draws"`
 	Parameters   []ParamSummary       `json:"parameters"`
 	Categorical  []CategorySummary    `json:"categorical"`
@@ -97,7 +114,8 @@ func Summarize(dir string) (*Summary, error) {
 	if err != nil {
 		return nil, fmt.Errorf("read samples: %w", err)
 	}
-	s := &Summary{Planet: p.Name, Complete: cp.Complete, Draws: b.Len(), Caution: Caution}
+	s := &Summary{Planet: p.Name, Complete: cp.Complete, Converged: cp.Converged, PriorOnly: p.PriorOnly(),
+		Draws: b.Len(), Caution: Caution, Evidence: evidenceSummary(cp.Tempered)}
 	chainCol, _ := b.Int64(ColChain)
 	nChains := len(cp.Chains)
 	split := func(name string) [][]float64 {
@@ -152,6 +170,36 @@ func Summarize(dir string) (*Summary, error) {
 		s.Chains = append(s.Chains, cs)
 	}
 	return s, nil
+}
+
+// evidenceSummary computes the evidence of a tempered run from its chains' final states (nil
+// for a run without tempering).
+func evidenceSummary(ts []mcmc.TemperedState) *EvidenceSummary {
+	if len(ts) == 0 {
+		return nil
+	}
+	es := &EvidenceSummary{Replicas: len(ts[0].Betas)}
+	betas := make([][]float64, len(ts))
+	stats := make([][]mcmc.LogLikStat, len(ts))
+	for c, t := range ts {
+		betas[c], stats[c] = t.Betas, t.LogLik
+	}
+	if z, se, err := mcmc.EvidenceLadders(betas, stats); err != nil {
+		es.Error = err.Error()
+	} else {
+		es.LogZ, es.StdErr = fp(z), fp(se)
+	}
+	for k := 0; k+1 < es.Replicas; k++ {
+		var prop, acc int64
+		for _, t := range ts {
+			if k < len(t.SwapProposed) {
+				prop += t.SwapProposed[k][1]
+				acc += t.SwapAccepted[k][1]
+			}
+		}
+		es.ExchangeAcceptance = append(es.ExchangeAcceptance, fp(float64(acc)/float64(prop)))
+	}
+	return es
 }
 
 // priorString renders a prior in the parameter's output unit.
@@ -235,7 +283,14 @@ func (s *Summary) WriteText(w io.Writer) error {
 	if !s.Complete {
 		state = "INCOMPLETE (resume to finish)"
 	}
-	fmt.Fprintf(&sb, "Posterior of %s: %d draws, run %s\n\n", s.Planet, s.Draws, state)
+	if s.Converged {
+		state = "complete (stopped by the convergence rule)"
+	}
+	what := "Posterior"
+	if s.PriorOnly {
+		what = "Prior (prior-only run: likelihood off; predictions are the prior predictive)"
+	}
+	fmt.Fprintf(&sb, "%s of %s: %d draws, run %s\n\n", what, s.Planet, s.Draws, state)
 	tw := tabwriter.NewWriter(&sb, 2, 4, 2, ' ', 0)
 	fmt.Fprintln(tw, "parameter\tunit\tmean\tsd\t5 %\t50 %\t95 %\tR̂\tESS bulk\tESS tail\tprior")
 	for _, p := range s.Parameters {
@@ -273,6 +328,18 @@ func (s *Summary) WriteText(w io.Writer) error {
 		fmt.Fprintf(tw, "%d\t%d\t%s\t%s\t%d\n", c.Chain, c.Draws, fmtp(c.Acceptance, "%.3f"), fmtp(c.StateAcceptance, "%.3f"), c.InvalidProposals)
 	}
 	tw.Flush()
+	if e := s.Evidence; e != nil {
+		if e.LogZ != nil {
+			fmt.Fprintf(&sb, "\nlog evidence (thermodynamic integration over %d replicas): %.3f ± %.3f\n", e.Replicas, *e.LogZ, *e.StdErr)
+		} else {
+			fmt.Fprintf(&sb, "\nlog evidence: not available (%s)\n", e.Error)
+		}
+		sb.WriteString("exchange acceptance between adjacent replicas (β = 1 first):")
+		for _, a := range e.ExchangeAcceptance {
+			sb.WriteString(" " + fmtp(a, "%.2f"))
+		}
+		sb.WriteString("\n")
+	}
 	fmt.Fprintf(&sb, "\nCaution: %s\n", s.Caution)
 	_, err := io.WriteString(w, sb.String())
 	return err
