@@ -113,6 +113,10 @@ type SamplerConfig struct {
 	// Workers is the number of goroutines running chains (0: one per core). It does not change
 	// the output.
 	Workers int `mapstructure:"workers" json:"workers" yaml:"workers"`
+	// Independence is the probability that a post-warm-up sweep moves the continuous parameters
+	// by an independence proposal (a multivariate t fitted to the warm-up) instead of the random
+	// walk; 0 turns these moves off.
+	Independence float64 `mapstructure:"independence" json:"independence" yaml:"independence"`
 	// PriorOnly switches the likelihood off: the chains sample the prior (restricted to models
 	// whose observables can all be computed), and the predictions are the prior predictive.
 	PriorOnly bool `mapstructure:"prior_only" json:"prior_only,omitempty" yaml:"prior_only,omitempty"`
@@ -188,6 +192,7 @@ var defaultSettings = map[string]any{
 	"sampler.thin":                  1,
 	"sampler.seed":                  1,
 	"sampler.workers":               0,
+	"sampler.independence":          0.5,
 	"output.dir":                    "run",
 	"output.checkpoint_every_steps": 1000,
 	"output.log_every_s":            10.0,

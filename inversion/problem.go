@@ -361,6 +361,8 @@ func validateSampler(file string, c *Config) error {
 		return bad("sampler.steps", "%d steps thinned by %d keep no draws", s.Steps, s.Thin)
 	case s.Workers < 0:
 		return bad("sampler.workers", "%d < 0 (0 means one per core)", s.Workers)
+	case !(s.Independence >= 0 && s.Independence < 1):
+		return bad("sampler.independence", "%g: want a probability in [0, 1)", s.Independence)
 	case o.CheckpointEverySteps < 1:
 		return bad("output.checkpoint_every_steps", "%d < 1", o.CheckpointEverySteps)
 	case !(o.LogEverySeconds > 0):

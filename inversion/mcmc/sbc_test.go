@@ -148,6 +148,8 @@ type sbcSetup struct {
 	thin   int64 // Config.Thin
 	warmup int64 // Config.Warmup
 	seed   uint64
+	// independence is Config.Independence (0: random-walk and categorical moves only).
+	independence float64
 }
 
 // sbcResult holds, per parameter, the ranks of θ* and the thinning check.
@@ -171,6 +173,7 @@ func sbcRun(t *testing.T, m sbcModel, setup sbcSetup, target func(y []float64) T
 		InitialScale: []float64{1, m.tau, 0},
 		Log:          []bool{false, true, false},
 		Init:         func(r *rand.Rand, x []float64) { m.draw(r, x) },
+		Independence: setup.independence,
 	}
 	var res sbcResult
 	lag1 := make([][sbcDim]float64, setup.reps)
@@ -312,6 +315,21 @@ func TestSBC(t *testing.T) {
 		// Independent kept draws have E[ρ̂₁] ≈ −1/L; 0.1 allows weak residual correlation only.
 		if !(math.Abs(res.lag1[i]) < 0.1) {
 			t.Errorf("%s: mean lag-1 autocorrelation of the kept draws %.3f: thinning too weak for SBC", sbcNames[i], res.lag1[i])
+		}
+	}
+}
+
+// TestSBCIndependence: the same check with half of the post-warm-up continuous moves made by the
+// independence proposal (a multivariate t fitted to the warm-up, with the log-scale Jacobian in
+// its ratio): its rank histograms must be uniform too.
+func TestSBCIndependence(t *testing.T) {
+	m := newSBCModel()
+	setup := sbcDefaultSetup()
+	setup.independence = 0.5
+	res := sbcRun(t, m, setup, func(y []float64) Target { return sbcPosterior{m: m, y: y, sigmaLik: m.sigma} })
+	for i, p := range sbcReport(t, "independence moves", setup, res) {
+		if !(p > 0.01) {
+			t.Errorf("%s: χ² p = %.3g ≤ 0.01 with independence moves", sbcNames[i], p)
 		}
 	}
 }
