@@ -236,7 +236,8 @@ func Restore(t Target, cfg Config, st State) (*Chain, error) {
 		return nil, fmt.Errorf("chain %d: state has %d coordinates, target %d", st.Chain, len(st.X), t.Dim())
 	case len(st.Derived) != t.NumDerived():
 		return nil, fmt.Errorf("chain %d: state has %d derived values, target %d", st.Chain, len(st.Derived), t.NumDerived())
-	case len(st.Adapt.Mean) != dc || len(st.Adapt.Cov) != dc*dc || len(st.Adapt.Chol) != dc*dc:
+	case len(st.Adapt.Mean) != dc || len(st.Adapt.Cov) != dc*dc || len(st.Adapt.Chol) != dc*dc ||
+		(len(st.Adapt.IndChol) != 0 && (len(st.Adapt.IndChol) != dc*dc || len(st.Adapt.IndMean) != dc)):
 		return nil, fmt.Errorf("chain %d: adaptation state does not match %d continuous coordinates", st.Chain, dc)
 	}
 	ch.st = cloneState(st)
