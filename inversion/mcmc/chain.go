@@ -334,22 +334,29 @@ type Emit func(draw int64, x, derived []float64, logDensity float64)
 // true (checked before every sweep; nil means never). Kept draws go to emit. It returns the number
 // of sweeps run.
 func (ch *Chain) Advance(until int64, stop func() bool, emit Emit) int64 {
-	if until > ch.cfg.Total() {
-		until = ch.cfg.Total()
-	}
+	return advance(ch.cfg, &ch.st.Iter, &ch.st.Draws, until, stop, ch.sweep, func() {
+		if emit != nil {
+			emit(ch.st.Draws, ch.st.X, ch.st.Derived, ch.st.LogDensity)
+		}
+	})
+}
+
+// advance is the loop of Chain.Advance and Tempered.Advance: it calls sweep (which increments
+// *iter) until *iter reaches until (at most cfg.Total()) or stop returns true, and after every
+// post-warm-up sweep the thinning keeps calls kept and counts the draw in *draws. It returns the
+// number of sweeps run.
+func advance(cfg Config, iter, draws *int64, until int64, stop func() bool, sweep, kept func()) int64 {
+	until = min(until, cfg.Total())
 	var n int64
-	for ch.st.Iter < until {
+	for *iter < until {
 		if stop != nil && stop() {
 			break
 		}
-		ch.sweep()
+		sweep()
 		n++
-		post := ch.st.Iter - ch.cfg.Warmup
-		if post > 0 && post%ch.cfg.Thin == 0 {
-			if emit != nil {
-				emit(ch.st.Draws, ch.st.X, ch.st.Derived, ch.st.LogDensity)
-			}
-			ch.st.Draws++
+		if post := *iter - cfg.Warmup; post > 0 && post%cfg.Thin == 0 {
+			kept()
+			*draws++
 		}
 	}
 	return n
@@ -464,17 +471,25 @@ func (ch *Chain) fitIndependence() {
 	if a.N < int64(2*dc+10) {
 		return
 	}
-	m := make([]float64, dc*dc)
-	for r := range dc {
-		for c := range dc {
-			m[r*dc+c] = indInflate * a.Cov[r*dc+c]
-		}
-		m[r*dc+r] += indInflate * covEpsilon * ch.d0[r]
-	}
-	if cholesky(m, dc) {
+	if m, ok := ch.covCholesky(indInflate); ok {
 		a.IndMean = append([]float64(nil), a.Mean...)
 		a.IndChol = m
 	}
+}
+
+// covCholesky returns the lower Cholesky factor of f·(C + εD), C the running covariance and D the
+// initial variances; false if it is not positive definite.
+func (ch *Chain) covCholesky(f float64) ([]float64, bool) {
+	dc := len(ch.cont)
+	a := &ch.st.Adapt
+	m := make([]float64, dc*dc)
+	for r := range dc {
+		for c := range dc {
+			m[r*dc+c] = f * a.Cov[r*dc+c]
+		}
+		m[r*dc+r] += f * covEpsilon * ch.d0[r]
+	}
+	return m, cholesky(m, dc)
 }
 
 // independenceMove proposes the continuous block from the independence proposal and accepts it
@@ -585,18 +600,8 @@ func (ch *Chain) adapt() {
 // matrix is not positive definite (which a finite sample covariance plus εD always is, barring
 // round-off).
 func (ch *Chain) refreshChol() {
-	dc := len(ch.cont)
-	a := &ch.st.Adapt
-	sd := 2.38 * 2.38 / float64(dc)
-	m := make([]float64, dc*dc)
-	for r := range dc {
-		for c := range dc {
-			m[r*dc+c] = sd * a.Cov[r*dc+c]
-		}
-		m[r*dc+r] += sd * covEpsilon * ch.d0[r]
-	}
-	if cholesky(m, dc) {
-		a.Chol = m
+	if m, ok := ch.covCholesky(2.38 * 2.38 / float64(len(ch.cont))); ok {
+		ch.st.Adapt.Chol = m
 	}
 }
 

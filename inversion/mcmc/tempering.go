@@ -361,26 +361,12 @@ func (tp *Tempered) LogLikStats() []LogLikStat {
 // one exchange round. Replica 0's kept draws go to emit, with the target's derived values and log
 // density (logPrior + logLik). It returns the number of sweeps run.
 func (tp *Tempered) Advance(until int64, stop func() bool, emit Emit) int64 {
-	if until > tp.cfg.Total() {
-		until = tp.cfg.Total()
-	}
-	var n int64
-	for tp.st.Iter < until {
-		if stop != nil && stop() {
-			break
+	return advance(tp.cfg, &tp.st.Iter, &tp.st.Draws, until, stop, tp.sweep, func() {
+		if emit != nil {
+			r := &tp.reps[0].st
+			emit(tp.st.Draws, r.X, r.Derived[:tp.n], r.LogDensity)
 		}
-		tp.sweep()
-		n++
-		post := tp.st.Iter - tp.cfg.Warmup
-		if post > 0 && post%tp.cfg.Thin == 0 {
-			if emit != nil {
-				r := &tp.reps[0].st
-				emit(tp.st.Draws, r.X, r.Derived[:tp.n], r.LogDensity)
-			}
-			tp.st.Draws++
-		}
-	}
-	return n
+	})
 }
 
 func (tp *Tempered) sweep() {
