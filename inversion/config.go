@@ -117,6 +117,10 @@ type SamplerConfig struct {
 	// by an independence proposal (a multivariate t fitted to the warm-up) instead of the random
 	// walk; 0 turns these moves off.
 	Independence float64 `mapstructure:"independence" json:"independence" yaml:"independence"`
+	// EventBlocks moves each seismic event's sampled source parameters (distance, depth, origin
+	// time) as a block of their own every sweep, besides the joint move: one more model
+	// evaluation per event and sweep, for events whose depth (or distance) is weakly constrained.
+	EventBlocks bool `mapstructure:"event_blocks" json:"event_blocks,omitempty" yaml:"event_blocks,omitempty"`
 	// PriorOnly switches the likelihood off: the chains sample the prior (restricted to models
 	// whose observables can all be computed), and the predictions are the prior predictive.
 	PriorOnly bool `mapstructure:"prior_only" json:"prior_only,omitempty" yaml:"prior_only,omitempty"`

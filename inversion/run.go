@@ -164,7 +164,7 @@ func chainConfig(cfg *Config, p *Problem) mcmc.Config {
 	}
 	return mcmc.Config{
 		Warmup: cfg.Sampler.WarmupSteps, Steps: cfg.Sampler.Steps, Thin: cfg.Sampler.Thin,
-		InitialScale: sc, Log: logc, Independence: cfg.Sampler.Independence,
+		InitialScale: sc, Log: logc, Independence: cfg.Sampler.Independence, Blocks: p.eventBlocks(cfg.Sampler.EventBlocks),
 		Init: func(r *rand.Rand, x []float64) { p.Space.Sample(r, x) },
 	}
 }

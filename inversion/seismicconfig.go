@@ -335,3 +335,24 @@ func (e *evaluation) firstArrival(ev, i int) (float64, error) {
 	e.arrival[k] = e.arrBuf[0].Time
 	return e.arrival[k], nil
 }
+
+// eventBlocks returns, when on, one block per seismic event of the indices of its sampled source
+// parameters (mcmc.Config.Blocks); events whose source is fixed have none.
+func (p *Problem) eventBlocks(on bool) [][]int {
+	if !on || p.seis == nil {
+		return nil
+	}
+	var out [][]int
+	for _, ev := range p.seis.events {
+		var b []int
+		for _, s := range []slot{ev.distance, ev.depth, ev.origin} {
+			if !s.isFixed() {
+				b = append(b, s.param)
+			}
+		}
+		if len(b) > 0 {
+			out = append(out, b)
+		}
+	}
+	return out
+}

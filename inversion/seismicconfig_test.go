@@ -2,6 +2,7 @@ package inversion
 
 import (
 	"math"
+	"reflect"
 	"strings"
 	"testing"
 
@@ -155,5 +156,17 @@ func BenchmarkLogDensitySeismic(b *testing.B) {
 	b.ReportAllocs()
 	for b.Loop() {
 		p.LogDensity(x, der)
+	}
+}
+
+// sampler.event_blocks gives each event with sampled source parameters a block of their indices.
+func TestEventBlocks(t *testing.T) {
+	p := buildConfig(t, seismicConfig)
+	if got := p.eventBlocks(false); got != nil {
+		t.Errorf("blocks %v with event_blocks off", got)
+	}
+	// quake_a: distance (2) and depth (3); quake_b: origin time (4).
+	if got := p.eventBlocks(true); !reflect.DeepEqual(got, [][]int{{2, 3}, {4}}) {
+		t.Errorf("blocks %v, want [[2 3] [4]]", got)
 	}
 }

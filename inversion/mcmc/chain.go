@@ -53,6 +53,13 @@ type Config struct {
 	Init func(r *rand.Rand, x []float64)
 	// MaxInitTries bounds the search for a valid starting point (default 10000).
 	MaxInitTries int
+	// Blocks are extra groups of continuous coordinates (indices of the target's coordinates),
+	// each moved every sweep, after the move of all continuous coordinates together, by its own
+	// adaptive Metropolis proposal. A group of coordinates that are nearly independent of the
+	// rest given the rest (say, one event's location) then mixes at its own scale, which the
+	// joint move — whose scale is set by the most constrained direction — cannot. Each block
+	// costs one density evaluation per sweep.
+	Blocks [][]int
 	// Independence is the probability, in [0, 1), that a post-warm-up sweep moves the continuous
 	// block by an independence proposal instead of the random walk (0: never; see
 	// independenceMove). It needs a warm-up to fit the proposal.
@@ -127,6 +134,9 @@ type Counters struct {
 	// Invalid counts proposals whose log density was −Inf or NaN (for example a non-physical
 	// model), all moves together.
 	Invalid [2]int64 `json:"invalid"`
+	// BlockProposed and BlockAccepted count the moves of the extra blocks, all blocks together.
+	BlockProposed [2]int64 `json:"block_proposed,omitempty"`
+	BlockAccepted [2]int64 `json:"block_accepted,omitempty"`
 	// IndependenceProposed and IndependenceAccepted count independence moves of the continuous
 	// block (post-warm-up only; they are not in Proposed/Accepted).
 	IndependenceProposed [2]int64 `json:"independence_proposed,omitempty"`
@@ -147,8 +157,10 @@ type State struct {
 	Derived    []float64 `json:"derived"`
 	// RNG is the marshalled PCG state.
 	RNG []byte `json:"rng"`
-	// Adapt is the proposal adaptation state.
+	// Adapt is the proposal adaptation state of the joint move of all continuous coordinates.
 	Adapt AdaptState `json:"adapt"`
+	// Blocks holds the adaptation state of each extra block (Config.Blocks), in order.
+	Blocks []AdaptState `json:"blocks,omitempty"`
 	// Counts are the move counters.
 	Counts Counters `json:"counts"`
 }
@@ -160,9 +172,11 @@ type Chain struct {
 	pcg  *rand.PCG
 	rng  *rand.Rand
 	st   State
-	cont []int  // indices of continuous coordinates
-	logc []bool // per continuous coordinate: proposed on a log scale
-	disc []int  // indices of discrete coordinates
+	cont []int   // indices of continuous coordinates
+	logc []bool  // per continuous coordinate: proposed on a log scale
+	all  []int   // positions 0..dc−1 in cont: the joint block
+	blk  [][]int // positions in cont of each extra block
+	disc []int   // indices of discrete coordinates
 	lev  []int
 	d0   []float64 // initial proposal variances of the continuous block
 
@@ -198,6 +212,9 @@ func NewChain(t Target, cfg Config, seed uint64, c int) (*Chain, error) {
 func startChain(t Target, cfg Config, pcg *rand.PCG, c int) (*Chain, error) {
 	ch := newChain(t, cfg, pcg)
 	ch.st.Chain = c
+	if err := ch.setBlocks(); err != nil {
+		return nil, fmt.Errorf("chain %d: %w", c, err)
+	}
 	tries := cfg.MaxInitTries
 	if tries <= 0 {
 		tries = 10000
@@ -215,8 +232,8 @@ func startChain(t Target, cfg Config, pcg *rand.PCG, c int) (*Chain, error) {
 			break
 		}
 	}
-	ch.resetMoments()
 	ch.setInitialProposal()
+	ch.resetMoments()
 	return ch, nil
 }
 
@@ -230,7 +247,19 @@ func Restore(t Target, cfg Config, st State) (*Chain, error) {
 		return nil, fmt.Errorf("chain %d: random-generator state: %w", st.Chain, err)
 	}
 	ch := newChain(t, cfg, pcg)
+	if err := ch.setBlocks(); err != nil {
+		return nil, fmt.Errorf("chain %d: %w", st.Chain, err)
+	}
 	dc := len(ch.cont)
+	if len(st.Blocks) != len(ch.blk) {
+		return nil, fmt.Errorf("chain %d: state has %d extra blocks, config %d", st.Chain, len(st.Blocks), len(ch.blk))
+	}
+	for b, pos := range ch.blk {
+		n, a := len(pos), st.Blocks[b]
+		if len(a.Mean) != n || len(a.Cov) != n*n || len(a.Chol) != n*n {
+			return nil, fmt.Errorf("chain %d: adaptation state of block %d does not match its %d coordinates", st.Chain, b, n)
+		}
+	}
 	switch {
 	case len(st.X) != t.Dim():
 		return nil, fmt.Errorf("chain %d: state has %d coordinates, target %d", st.Chain, len(st.X), t.Dim())
@@ -271,25 +300,69 @@ func newChain(t Target, cfg Config, pcg *rand.PCG) *Chain {
 	ch.dy = make([]float64, dc)
 	ch.delta = make([]float64, dc)
 	ch.yDer = make([]float64, t.NumDerived())
+	ch.all = make([]int, dc)
+	for k := range dc {
+		ch.all[k] = k
+	}
 	return ch
 }
 
-func (ch *Chain) resetMoments() {
-	dc := len(ch.cont)
-	a := &ch.st.Adapt
-	a.N = 0
-	a.Mean = make([]float64, dc)
-	a.Cov = make([]float64, dc*dc)
+// setBlocks maps Config.Blocks to positions among the continuous coordinates.
+func (ch *Chain) setBlocks() error {
+	pos := make(map[int]int, len(ch.cont))
+	for k, i := range ch.cont {
+		pos[i] = k
+	}
+	ch.blk = ch.blk[:0]
+	for b, idx := range ch.cfg.Blocks {
+		if len(idx) == 0 {
+			return fmt.Errorf("block %d is empty", b)
+		}
+		seen := map[int]bool{}
+		var ps []int
+		for _, i := range idx {
+			k, ok := pos[i]
+			if !ok || seen[i] {
+				return fmt.Errorf("block %d: coordinate %d is not a distinct continuous coordinate", b, i)
+			}
+			seen[i] = true
+			ps = append(ps, k)
+		}
+		ch.blk = append(ch.blk, ps)
+	}
+	return nil
 }
 
-// setInitialProposal sets the proposal to diag(initial scales²)·(2.38²/d)... without the 2.38²/d
+// resetMoments clears the running moments of the joint move and of every extra block.
+func (ch *Chain) resetMoments() {
+	resetBlockMoments(&ch.st.Adapt, len(ch.all))
+	for b, pos := range ch.blk {
+		resetBlockMoments(&ch.st.Blocks[b], len(pos))
+	}
+}
+
+func resetBlockMoments(a *AdaptState, n int) {
+	a.N = 0
+	a.Mean = make([]float64, n)
+	a.Cov = make([]float64, n*n)
+}
+
+// setInitialProposal sets every block's proposal to diag(initial scales²), without the 2.38²/d
 // factor: before any moments exist the user's scales are taken as they are.
 func (ch *Chain) setInitialProposal() {
-	dc := len(ch.cont)
-	a := &ch.st.Adapt
-	a.Chol = make([]float64, dc*dc)
-	for k := range dc {
-		a.Chol[k*dc+k] = math.Sqrt(ch.d0[k])
+	ch.initialProposal(&ch.st.Adapt, ch.all)
+	ch.st.Blocks = make([]AdaptState, len(ch.blk))
+	for b, pos := range ch.blk {
+		resetBlockMoments(&ch.st.Blocks[b], len(pos))
+		ch.initialProposal(&ch.st.Blocks[b], pos)
+	}
+}
+
+func (ch *Chain) initialProposal(a *AdaptState, pos []int) {
+	n := len(pos)
+	a.Chol = make([]float64, n*n)
+	for k, p := range pos {
+		a.Chol[k*n+k] = math.Sqrt(ch.d0[p])
 	}
 	a.LogScale = 0
 }
@@ -315,6 +388,13 @@ func cloneState(s State) State {
 	c.Adapt.Chol = append([]float64(nil), s.Adapt.Chol...)
 	c.Adapt.IndMean = append([]float64(nil), s.Adapt.IndMean...)
 	c.Adapt.IndChol = append([]float64(nil), s.Adapt.IndChol...)
+	c.Blocks = nil
+	for _, b := range s.Blocks {
+		b.Mean = append([]float64(nil), b.Mean...)
+		b.Cov = append([]float64(nil), b.Cov...)
+		b.Chol = append([]float64(nil), b.Chol...)
+		c.Blocks = append(c.Blocks, b)
+	}
 	return c
 }
 
@@ -380,40 +460,15 @@ func (ch *Chain) sweep() {
 			c.IndependenceAccepted[phase]++
 		}
 	} else if dc > 0 {
-		a := &ch.st.Adapt
-		s := math.Exp(a.LogScale)
-		for k := range ch.z {
-			ch.z[k] = ch.rng.NormFloat64()
-		}
-		copy(ch.y, ch.st.X)
-		logq := 0.0 // log Hastings ratio q(x|y)/q(y|x): Σ log(y/x) over log coordinates
-		for k := range dc {
-			row := a.Chol[k*dc : k*dc+k+1]
-			v := 0.0
-			for j, l := range row {
-				v += l * ch.z[j]
-			}
-			i := ch.cont[k]
-			if ch.logc[k] {
-				ch.y[i] *= math.Exp(s * v)
-				logq += s * v
-			} else {
-				ch.y[i] += s * v
-			}
-		}
-		acc := ch.metropolis(phase, logq)
 		c.Proposed[phase]++
-		if acc {
+		if ch.rwMove(&ch.st.Adapt, ch.all, phase, warm) {
 			c.Accepted[phase]++
 		}
-		if warm {
-			// Robbins–Monro on log s; the gain decays so adaptation settles within warm-up.
-			gain := math.Pow(float64(ch.st.Iter+1), -robbinsMonroEx)
-			r := 0.0
-			if acc {
-				r = 1
-			}
-			a.LogScale += gain * (r - targetAccept)
+	}
+	for b, pos := range ch.blk {
+		c.BlockProposed[phase]++
+		if ch.rwMove(&ch.st.Blocks[b], pos, phase, warm) {
+			c.BlockAccepted[phase]++
 		}
 	}
 	for _, i := range ch.disc {
@@ -471,25 +526,24 @@ func (ch *Chain) fitIndependence() {
 	if a.N < int64(2*dc+10) {
 		return
 	}
-	if m, ok := ch.covCholesky(indInflate); ok {
+	if m, ok := ch.covCholesky(a, ch.all, indInflate); ok {
 		a.IndMean = append([]float64(nil), a.Mean...)
 		a.IndChol = m
 	}
 }
 
-// covCholesky returns the lower Cholesky factor of f·(C + εD), C the running covariance and D the
-// initial variances; false if it is not positive definite.
-func (ch *Chain) covCholesky(f float64) ([]float64, bool) {
-	dc := len(ch.cont)
-	a := &ch.st.Adapt
-	m := make([]float64, dc*dc)
-	for r := range dc {
-		for c := range dc {
-			m[r*dc+c] = f * a.Cov[r*dc+c]
+// covCholesky returns the lower Cholesky factor of f·(C + εD) for the block at positions pos, C
+// its running covariance and D the initial variances; false if it is not positive definite.
+func (ch *Chain) covCholesky(a *AdaptState, pos []int, f float64) ([]float64, bool) {
+	d := len(pos)
+	m := make([]float64, d*d)
+	for r := range d {
+		for c := range d {
+			m[r*d+c] = f * a.Cov[r*d+c]
 		}
-		m[r*dc+r] += f * covEpsilon * ch.d0[r]
+		m[r*d+r] += f * covEpsilon * ch.d0[pos[r]]
 	}
-	return m, cholesky(m, dc)
+	return m, cholesky(m, d)
 }
 
 // independenceMove proposes the continuous block from the independence proposal and accepts it
@@ -543,6 +597,45 @@ func (ch *Chain) independenceMove(phase int) bool {
 	return ch.metropolis(phase, logq)
 }
 
+// rwMove is an adaptive random-walk Metropolis move of the continuous coordinates at positions
+// pos (of cont), with the proposal state a: y = x + s·L·z (log coordinates multiplicatively, with
+// the Hastings correction y/x). During warm-up the global scale s follows a Robbins–Monro
+// recursion towards acceptance 0.234 (the gain decays so adaptation settles within warm-up).
+func (ch *Chain) rwMove(a *AdaptState, pos []int, phase int, warm bool) bool {
+	n := len(pos)
+	s := math.Exp(a.LogScale)
+	z := ch.z[:n]
+	for k := range z {
+		z[k] = ch.rng.NormFloat64()
+	}
+	copy(ch.y, ch.st.X)
+	logq := 0.0 // log Hastings ratio q(x|y)/q(y|x): Σ log(y/x) over log coordinates
+	for k, p := range pos {
+		row := a.Chol[k*n : k*n+k+1]
+		v := 0.0
+		for j, l := range row {
+			v += l * z[j]
+		}
+		i := ch.cont[p]
+		if ch.logc[p] {
+			ch.y[i] *= math.Exp(s * v)
+			logq += s * v
+		} else {
+			ch.y[i] += s * v
+		}
+	}
+	acc := ch.metropolis(phase, logq)
+	if warm {
+		gain := math.Pow(float64(ch.st.Iter+1), -robbinsMonroEx)
+		r := 0.0
+		if acc {
+			r = 1
+		}
+		a.LogScale += gain * (r - targetAccept)
+	}
+	return acc
+}
+
 // metropolis evaluates the proposal in ch.y and accepts it with probability
 // min(1, p(y)/p(x)·exp(logq)), logq being the log Hastings ratio of the proposal.
 func (ch *Chain) metropolis(phase int, logq float64) bool {
@@ -565,43 +658,47 @@ func (ch *Chain) metropolis(phase int, logq float64) bool {
 // adapt updates the running moments with the current point, restarts them at the window
 // boundaries and refreshes the proposal's Cholesky factor every cholEvery sweeps.
 func (ch *Chain) adapt() {
-	dc := len(ch.cont)
-	if dc == 0 {
+	if len(ch.cont) == 0 {
 		return
 	}
 	it, w := ch.st.Iter, ch.cfg.Warmup
 	if it == w/4 || it == w/2 {
 		ch.resetMoments()
 	}
-	a := &ch.st.Adapt
-	a.N++
-	n := float64(a.N)
-	for k, i := range ch.cont {
-		w := ch.st.X[i]
-		if ch.logc[k] {
-			w = math.Log(w)
-		}
-		ch.delta[k] = w - a.Mean[k]
-		a.Mean[k] += ch.delta[k] / n
-	}
-	// Welford: Cov holds the running covariance (divisor n).
-	for r := range dc {
-		for c := range dc {
-			idx := r*dc + c
-			a.Cov[idx] += ((n-1)/n*ch.delta[r]*ch.delta[c] - a.Cov[idx]) / n
-		}
-	}
-	if it%cholEvery == 0 && a.N > int64(2*dc+10) {
-		ch.refreshChol()
+	ch.adaptBlock(&ch.st.Adapt, ch.all)
+	for b, pos := range ch.blk {
+		ch.adaptBlock(&ch.st.Blocks[b], pos)
 	}
 }
 
-// refreshChol sets Chol to the factor of (2.38²/d)(C + εD); it keeps the old factor when the
-// matrix is not positive definite (which a finite sample covariance plus εD always is, barring
-// round-off).
-func (ch *Chain) refreshChol() {
-	if m, ok := ch.covCholesky(2.38 * 2.38 / float64(len(ch.cont))); ok {
-		ch.st.Adapt.Chol = m
+// adaptBlock adds the current point to the running moments of the block at positions pos and
+// every cholEvery sweeps sets its proposal factor to that of (2.38²/d)(C + εD), keeping the old
+// factor when the matrix is not positive definite (which a finite sample covariance plus εD
+// always is, barring round-off).
+func (ch *Chain) adaptBlock(a *AdaptState, pos []int) {
+	d := len(pos)
+	a.N++
+	n := float64(a.N)
+	delta := ch.delta[:d]
+	for k, p := range pos {
+		w := ch.st.X[ch.cont[p]]
+		if ch.logc[p] {
+			w = math.Log(w)
+		}
+		delta[k] = w - a.Mean[k]
+		a.Mean[k] += delta[k] / n
+	}
+	// Welford: Cov holds the running covariance (divisor n).
+	for r := range d {
+		for c := range d {
+			idx := r*d + c
+			a.Cov[idx] += ((n-1)/n*delta[r]*delta[c] - a.Cov[idx]) / n
+		}
+	}
+	if ch.st.Iter%cholEvery == 0 && a.N > int64(2*d+10) {
+		if m, ok := ch.covCholesky(a, pos, 2.38*2.38/float64(d)); ok {
+			a.Chol = m
+		}
 	}
 }
 

@@ -160,17 +160,20 @@ func TestDiscreteMarginal(t *testing.T) {
 // A chain stopped after any number of sweeps, serialised to JSON, restored and continued must
 // emit exactly the draws of an uninterrupted chain, bit for bit.
 func TestResumeEqualsUninterrupted(t *testing.T) {
-	for _, ind := range []float64{0, 0.5} {
-		checkChainResume(t, ind)
+	for _, c := range []struct {
+		ind    float64
+		blocks [][]int
+	}{{0, nil}, {0.5, nil}, {0.5, [][]int{{0}}}} {
+		checkChainResume(t, c.ind, c.blocks)
 	}
 }
 
-// checkChainResume cuts a chain (independence-move probability ind) at awkward points — around
+// checkChainResume cuts a chain (independence-move probability ind, extra blocks) at awkward points — around
 // the end of warm-up, where the independence proposal is fitted — and requires the draws and the
 // final state of an uninterrupted chain.
-func checkChainResume(t *testing.T, ind float64) {
+func checkChainResume(t *testing.T, ind float64, blocks [][]int) {
 	tg := mixed{w: []float64{0.2, 0.5, 0.3}, m: []float64{0, 0.5, 1}}
-	cfg := Config{Warmup: 300, Steps: 700, Thin: 3, InitialScale: []float64{1, 0}, Independence: ind,
+	cfg := Config{Warmup: 300, Steps: 700, Thin: 3, InitialScale: []float64{1, 0}, Independence: ind, Blocks: blocks,
 		Init: func(r *rand.Rand, x []float64) { x[0] = r.NormFloat64(); x[1] = float64(r.IntN(3)) }}
 	type row struct {
 		draw int64
@@ -364,4 +367,16 @@ func TestIndependenceMovesRaiseESS(t *testing.T) {
 		}
 	}
 	t.Logf("bulk-ESS without / with independence moves: %.0f / %.0f and %.0f / %.0f", plain[0], mixed[0], plain[1], mixed[1])
+}
+
+// Extra blocks must name distinct continuous coordinates.
+func TestBlocksInvalid(t *testing.T) {
+	tg := mixed{w: []float64{0.2, 0.5, 0.3}, m: []float64{0, 0.5, 1}}
+	for _, blocks := range [][][]int{{{1}}, {{0, 0}}, {{}}, {{5}}} {
+		cfg := Config{Warmup: 10, Steps: 10, Thin: 1, Blocks: blocks,
+			Init: func(r *rand.Rand, x []float64) { x[0] = r.NormFloat64(); x[1] = float64(r.IntN(3)) }}
+		if _, err := NewChain(tg, cfg, 1, 0); err == nil {
+			t.Errorf("blocks %v: no error", blocks)
+		}
+	}
 }
