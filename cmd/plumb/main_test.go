@@ -46,13 +46,15 @@ output: {checkpoint_every_steps: 100}
 `
 
 func TestCheckDemo(t *testing.T) {
-	code, out, errOut := plumb(t, "check", filepath.Join("..", "..", "runs", "demo", "config.yaml"))
-	if code != 0 {
-		t.Fatalf("exit %d: %s", code, errOut)
-	}
-	for _, w := range []string{"core_outer_radius_km", "uniform", "mass_kg", "moi_factor", "core_state"} {
-		if !strings.Contains(out, w) {
-			t.Errorf("check output lacks %q:\n%s", w, out)
+	for _, file := range []string{"config.yaml", "free_depths.yaml"} {
+		code, out, errOut := plumb(t, "check", filepath.Join("..", "..", "runs", "demo", file))
+		if code != 0 {
+			t.Fatalf("%s: exit %d: %s", file, code, errOut)
+		}
+		for _, w := range []string{"core_outer_radius_km", "uniform", "mass_kg", "moi_factor", "core_state", "quake_1_distance_deg"} {
+			if !strings.Contains(out, w) {
+				t.Errorf("%s: check output lacks %q:\n%s", file, w, out)
+			}
 		}
 	}
 }
