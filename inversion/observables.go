@@ -26,24 +26,33 @@ func (o Observable) ToSI() float64 { return o.toSI }
 
 // Predict computes the observable (SI) for the structure p solved at x.
 func (o Observable) Predict(p *Problem, st *forward.Structure, x []float64) (float64, error) {
-	return o.eval(&evaluation{st: st, p: p, x: x})
+	return o.eval(&evaluation{shared: &shared{st: st}, p: p, x: x})
+}
+
+// shared holds what depends on the structural parameters alone — the solved structure, the Love
+// numbers, the ray-tracing medium — each computed at most once. A chain's structCache keeps it
+// across evaluations that change only the seismic events' source parameters.
+type shared struct {
+	st      *forward.Structure
+	love    [3]complex128
+	loveErr error
+	loveOK  bool
+	// The medium of the seismic picks.
+	medium    *seismic.Medium
+	mediumErr error
+	mediumOK  bool
 }
 
 // evaluation is one model's structure with the results that several observables share (the
 // Love numbers serve k2, h2 and tidal_q; a phase's first arrival serves every pick of its event
 // that uses it), computed at most once.
 type evaluation struct {
-	st      *forward.Structure
-	p       *Problem
-	x       []float64
-	love    [3]complex128
-	loveErr error
-	loveOK  bool
-	// Seismic: the medium and the first-arrival time of each (event, phase), NaN until computed.
-	medium    *seismic.Medium
-	mediumErr error
-	arrival   []float64
-	arrBuf    []seismic.Arrival
+	*shared
+	p *Problem
+	x []float64
+	// The first-arrival time of each (event, phase), NaN until computed.
+	arrival []float64
+	arrBuf  []seismic.Arrival
 }
 
 // love2 returns the degree-2 Love numbers k, h, l (complex at a tidal period).

@@ -67,6 +67,9 @@ type Problem struct {
 	seis *seismicPlan
 	// priorOnly drops the likelihood from LogDensity (sampler.prior_only).
 	priorOnly bool
+	// structIdx lists the structural parameters: all but the seismic events' source parameters
+	// (the key of a chain's structCache).
+	structIdx []int
 }
 
 // Observation is one datum with its Gaussian error, SI units.
@@ -132,6 +135,7 @@ func Build(c *Config, file string) (*Problem, error) {
 		return nil, err
 	}
 	p.priorOnly = c.Sampler.PriorOnly
+	p.structIdx = p.structuralParams()
 	return p, nil
 }
 
@@ -608,16 +612,32 @@ func (p *Problem) LogDensity(x, derived []float64) float64 {
 // (mcmc.Split: tempering raises the likelihood to a power). Outside the support, or for a
 // non-physical model, the log prior is −Inf.
 func (p *Problem) LogParts(x, derived []float64) (logPrior, logLik float64) {
+	return p.logParts(x, derived, nil)
+}
+
+// logParts is LogParts with an optional per-chain cache of the structure-only results.
+func (p *Problem) logParts(x, derived []float64, c *structCache) (logPrior, logLik float64) {
 	lp := p.Space.LogPrior(x)
 	if math.IsInf(lp, -1) || math.IsNaN(lp) {
 		return math.Inf(-1), 0
 	}
-	st, err := p.Solve(x)
-	if err != nil {
+	var sh *shared
+	if c != nil && c.hit(p, x) {
+		sh = c.sh
+	} else {
+		st, err := p.Solve(x)
+		if err == nil {
+			sh = &shared{st: st}
+		}
+		if c != nil {
+			c.set(p, x, sh)
+		}
+	}
+	if sh == nil { // the structure could not be solved
 		return math.Inf(-1), 0
 	}
 	ll := 0.0
-	ev := &evaluation{st: st, p: p, x: x}
+	ev := &evaluation{shared: sh, p: p, x: x}
 	for i, o := range p.Observations {
 		v, err := o.Observable.eval(ev)
 		if err != nil || math.IsNaN(v) || math.IsInf(v, 0) {

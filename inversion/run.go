@@ -229,9 +229,9 @@ type sampler interface {
 func (rs *runState) newSampler(c int) (sampler, error) {
 	seed := rs.cfg.Sampler.Seed
 	if t := rs.cfg.Sampler.Tempering; t != nil {
-		return mcmc.NewTempered(rs.prob, rs.mc, t.temperConfig(), seed, c)
+		return mcmc.NewTempered(rs.prob.chainTarget(), rs.mc, t.temperConfig(), seed, c)
 	}
-	return mcmc.NewChain(rs.prob, rs.mc, seed, c)
+	return mcmc.NewChain(rs.prob.chainTarget(), rs.mc, seed, c)
 }
 
 // restoreSamplers rebuilds the chains from a checkpoint.
@@ -242,7 +242,7 @@ func (rs *runState) restoreSamplers(cp *Checkpoint) error {
 			return fmt.Errorf("checkpoint has %d tempered chains, config %d", len(cp.Tempered), n)
 		}
 		for _, st := range cp.Tempered {
-			tp, err := mcmc.RestoreTempered(rs.prob, rs.mc, t.temperConfig(), st)
+			tp, err := mcmc.RestoreTempered(rs.prob.chainTarget(), rs.mc, t.temperConfig(), st)
 			if err != nil {
 				return fmt.Errorf("restore checkpoint: %w", err)
 			}
@@ -254,7 +254,7 @@ func (rs *runState) restoreSamplers(cp *Checkpoint) error {
 		return fmt.Errorf("checkpoint has %d chains, config %d", len(cp.Chains), n)
 	}
 	for _, st := range cp.Chains {
-		ch, err := mcmc.Restore(rs.prob, rs.mc, st)
+		ch, err := mcmc.Restore(rs.prob.chainTarget(), rs.mc, st)
 		if err != nil {
 			return fmt.Errorf("restore checkpoint: %w", err)
 		}

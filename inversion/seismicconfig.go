@@ -313,7 +313,10 @@ func (e *evaluation) firstArrival(ev, i int) (float64, error) {
 		for k := range e.arrival {
 			e.arrival[k] = math.NaN()
 		}
+	}
+	if !e.mediumOK {
 		e.medium, e.mediumErr = e.p.Medium(e.st)
+		e.mediumOK = true
 	}
 	if e.mediumErr != nil {
 		return math.NaN(), e.mediumErr
@@ -352,6 +355,23 @@ func (p *Problem) eventBlocks(on bool) [][]int {
 		}
 		if len(b) > 0 {
 			out = append(out, b)
+		}
+	}
+	return out
+}
+
+// structuralParams lists the parameters that are not seismic events' source parameters.
+func (p *Problem) structuralParams() []int {
+	event := map[int]bool{}
+	for _, b := range p.eventBlocks(true) {
+		for _, i := range b {
+			event[i] = true
+		}
+	}
+	var out []int
+	for i := range p.Space.Params {
+		if !event[i] {
+			out = append(out, i)
 		}
 	}
 	return out
