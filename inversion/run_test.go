@@ -323,6 +323,12 @@ func TestPriorOnly(t *testing.T) {
 			continue
 		}
 		mcse := *p.SD / math.Sqrt(*p.ESSBulk)
+		// The summary's own MCSEs (V21, from split-chain ESS) are present and of the same size.
+		for _, m := range []*float64{p.MCSEMean, p.MCSEQ05, p.MCSEQ50, p.MCSEQ95} {
+			if m == nil || !(*m > 0.25*mcse && *m < 4*mcse) {
+				t.Errorf("%s: summary MCSE %v, expected about %.3g", p.Name, m, mcse)
+			}
+		}
 		if math.Abs(*p.Mean-w) > 4*mcse {
 			t.Errorf("%s: mean %.2f, prior mean %.2f (MCSE %.2f)", p.Name, *p.Mean, w, mcse)
 		}

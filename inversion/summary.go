@@ -30,6 +30,12 @@ type ParamSummary struct {
 	RHat    *float64 `json:"rhat"`
 	ESSBulk *float64 `json:"ess_bulk"`
 	ESSTail *float64 `json:"ess_tail"`
+	// MCSEMean and MCSEQ05/Q50/Q95 are the Monte Carlo standard errors of the mean and of the
+	// quantiles (Vehtari et al. 2021).
+	MCSEMean *float64 `json:"mcse_mean"`
+	MCSEQ05  *float64 `json:"mcse_q05"`
+	MCSEQ50  *float64 `json:"mcse_q50"`
+	MCSEQ95  *float64 `json:"mcse_q95"`
 }
 
 // CategorySummary is the posterior of a categorical parameter.
@@ -238,6 +244,8 @@ func paramSummary(name, unit string, chains [][]float64) ParamSummary {
 		eq[i] = c[:short]
 	}
 	ps.RHat, ps.ESSBulk, ps.ESSTail = fp(mcmc.RankRHat(eq)), fp(mcmc.ESSBulk(eq)), fp(mcmc.ESSTail(eq))
+	ps.MCSEMean = fp(mcmc.MCSEMean(eq))
+	ps.MCSEQ05, ps.MCSEQ50, ps.MCSEQ95 = fp(mcmc.MCSEQuantile(eq, 0.05)), fp(mcmc.MCSEQuantile(eq, 0.5)), fp(mcmc.MCSEQuantile(eq, 0.95))
 	return ps
 }
 
@@ -292,13 +300,14 @@ func (s *Summary) WriteText(w io.Writer) error {
 	}
 	fmt.Fprintf(&sb, "%s of %s: %d draws, run %s\n\n", what, s.Planet, s.Draws, state)
 	tw := tabwriter.NewWriter(&sb, 2, 4, 2, ' ', 0)
-	fmt.Fprintln(tw, "parameter\tunit\tmean\tsd\t5 %\t50 %\t95 %\tR̂\tESS bulk\tESS tail\tprior")
+	fmt.Fprintln(tw, "parameter\tunit\tmean\t± MCSE\tsd\t5 %\t50 %\t95 %\tR̂\tESS bulk\tESS tail\tprior")
 	for _, p := range s.Parameters {
-		fmt.Fprintf(tw, "%s\t%s\t%s\t%s\t%s\t%s\t%s\t%s\t%s\t%s\t%s\n", p.Name, p.Unit,
-			fmtp(p.Mean, "%.5g"), fmtp(p.SD, "%.3g"), fmtp(p.Q05, "%.5g"), fmtp(p.Q50, "%.5g"), fmtp(p.Q95, "%.5g"),
+		fmt.Fprintf(tw, "%s\t%s\t%s\t%s\t%s\t%s\t%s\t%s\t%s\t%s\t%s\t%s\n", p.Name, p.Unit,
+			fmtp(p.Mean, "%.5g"), fmtp(p.MCSEMean, "%.2g"), fmtp(p.SD, "%.3g"), fmtp(p.Q05, "%.5g"), fmtp(p.Q50, "%.5g"), fmtp(p.Q95, "%.5g"),
 			fmtp(p.RHat, "%.3f"), fmtp(p.ESSBulk, "%.0f"), fmtp(p.ESSTail, "%.0f"), p.Prior)
 	}
 	tw.Flush()
+	sb.WriteString("(± MCSE: Monte Carlo standard error of the mean; those of the quantiles are in summary.json.)\n")
 	for _, c := range s.Categorical {
 		fmt.Fprintf(&sb, "\n%s:", c.Name)
 		keys := make([]string, 0, len(c.Probability))
