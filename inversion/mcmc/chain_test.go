@@ -346,7 +346,7 @@ func TestLogCoordinates(t *testing.T) {
 // correlated Gaussian of TestCorrelatedGaussian, making half of the post-warm-up moves
 // independence moves raises the bulk-ESS of both coordinates more than twofold at the same number
 // of density evaluations (measured while writing the test: ≈ 2.9×; the mean and covariance are
-// still checked by TestSBCIndependence and by the 4-MCSE check below).
+// still checked by TestSBCMoveVariants and by the 4-MCSE check below).
 func TestIndependenceMovesRaiseESS(t *testing.T) {
 	tg := newGauss2([2]float64{3, -2000}, [2]float64{1, 1000}, 0.95)
 	ess := func(ind float64) ([2]float64, [][][]float64) {

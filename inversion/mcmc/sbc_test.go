@@ -322,32 +322,30 @@ func TestSBC(t *testing.T) {
 	}
 }
 
-// TestSBCIndependence: the same check with half of the post-warm-up continuous moves made by the
-// independence proposal (a multivariate t fitted to the warm-up, with the log-scale Jacobian in
-// its ratio): its rank histograms must be uniform too.
-func TestSBCIndependence(t *testing.T) {
+// TestSBCMoveVariants: the same check with the optional moves switched on — half of the
+// post-warm-up continuous moves made by the independence proposal (a multivariate t fitted to the
+// warm-up, with the log-scale Jacobian in its ratio), and each continuous parameter also moved as
+// a block of its own every sweep (Config.Blocks): the rank histograms must be uniform too.
+func TestSBCMoveVariants(t *testing.T) {
 	m := newSBCModel()
-	setup := sbcDefaultSetup()
-	setup.independence = 0.5
-	res := sbcRun(t, m, setup, func(y []float64) Target { return sbcPosterior{m: m, y: y, sigmaLik: m.sigma} })
-	for i, p := range sbcReport(t, "independence moves", setup, res) {
-		if !(p > 0.01) {
-			t.Errorf("%s: χ² p = %.3g ≤ 0.01 with independence moves", sbcNames[i], p)
-		}
-	}
-}
-
-// TestSBCBlocks: the same check with each continuous parameter also moved as a block of its own
-// every sweep (Config.Blocks): rank histograms uniform.
-func TestSBCBlocks(t *testing.T) {
-	m := newSBCModel()
-	setup := sbcDefaultSetup()
-	setup.blocks = [][]int{{0}, {1}}
-	res := sbcRun(t, m, setup, func(y []float64) Target { return sbcPosterior{m: m, y: y, sigmaLik: m.sigma} })
-	for i, p := range sbcReport(t, "extra blocks", setup, res) {
-		if !(p > 0.01) {
-			t.Errorf("%s: χ² p = %.3g ≤ 0.01 with extra blocks", sbcNames[i], p)
-		}
+	for _, c := range []struct {
+		name         string
+		independence float64
+		blocks       [][]int
+	}{
+		{"independence moves", 0.5, nil},
+		{"extra blocks", 0, [][]int{{0}, {1}}},
+	} {
+		t.Run(c.name, func(t *testing.T) {
+			setup := sbcDefaultSetup()
+			setup.independence, setup.blocks = c.independence, c.blocks
+			res := sbcRun(t, m, setup, func(y []float64) Target { return sbcPosterior{m: m, y: y, sigmaLik: m.sigma} })
+			for i, p := range sbcReport(t, c.name, setup, res) {
+				if !(p > 0.01) {
+					t.Errorf("%s: χ² p = %.3g ≤ 0.01 with %s", sbcNames[i], p, c.name)
+				}
+			}
+		})
 	}
 }
 
