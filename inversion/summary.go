@@ -343,6 +343,7 @@ func (s *Summary) WriteText(w io.Writer) error {
 		} else {
 			fmt.Fprintf(&sb, "\nlog evidence: not available (%s)\n", e.Error)
 		}
+		sb.WriteString("(compare model families by differences of log evidence; they depend on the prior ranges much more than the posterior does)\n")
 		sb.WriteString("exchange acceptance between adjacent replicas (β = 1 first):")
 		for _, a := range e.ExchangeAcceptance {
 			sb.WriteString(" " + fmtp(a, "%.2f"))
