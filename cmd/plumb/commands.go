@@ -200,6 +200,20 @@ func checkCmd() *cobra.Command {
 			s := cfg.Sampler
 			fmt.Fprintf(w, "\nsampler: %d chains × (%d warm-up + %d steps), thin %d → %d draws per chain; seed %d\n",
 				s.Chains, s.WarmupSteps, s.Steps, s.Thin, s.Steps/s.Thin, s.Seed)
+			fmt.Fprintf(w, "moves: random walk, independence share %g", s.Independence)
+			if s.EventBlocks {
+				fmt.Fprint(w, ", a block per seismic event")
+			}
+			if t := s.Tempering; t != nil {
+				fmt.Fprintf(w, "; tempering with %d replicas per chain", t.Replicas)
+			}
+			if s.PriorOnly {
+				fmt.Fprint(w, "; PRIOR ONLY (likelihood off)")
+			}
+			if st := s.Stop; st != nil {
+				fmt.Fprintf(w, "; stop when R̂ < %g and bulk-ESS > %g", st.RHatBelow, st.ESSAbove)
+			}
+			fmt.Fprintln(w)
 			return nil
 		},
 	}
