@@ -105,17 +105,31 @@ func (m *monitor) addParts(dir string, p *Problem) error {
 	return nil
 }
 
-// diagnostics returns the largest rank-normalized split-R̂ and the smallest bulk-ESS over the
-// monitored parameters (NaN while undefined, e.g. too few draws), and the parameter of each.
-func (m *monitor) diagnostics(p *Problem) (worstRHat float64, rhatName string, minESS float64, essName string) {
+// diagnostics holds the convergence diagnostics of the monitored parameters.
+type diagnostics struct {
+	rhat, ess []float64 // per monitored parameter; NaN while undefined (e.g. too few draws)
+}
+
+// diagnostics computes the rank-normalized split-R̂ and the bulk-ESS of every monitored
+// parameter.
+func (m *monitor) diagnostics() diagnostics {
+	d := diagnostics{rhat: make([]float64, len(m.params)), ess: make([]float64, len(m.params))}
+	for k := range m.params {
+		d.rhat[k], d.ess[k] = mcmc.RankRHat(m.kept[k]), mcmc.ESSBulk(m.kept[k])
+	}
+	return d
+}
+
+// worst returns the largest R̂ and the smallest bulk-ESS (NaN if none is defined), and the
+// parameter of each.
+func (m *monitor) worst(p *Problem, d diagnostics) (worstRHat float64, rhatName string, minESS float64, essName string) {
 	worstRHat, minESS = math.NaN(), math.NaN()
 	for k, i := range m.params {
-		r, e := mcmc.RankRHat(m.kept[k]), mcmc.ESSBulk(m.kept[k])
 		name := p.Space.Params[i].Name
-		if !math.IsNaN(r) && (math.IsNaN(worstRHat) || r > worstRHat) {
+		if r := d.rhat[k]; !math.IsNaN(r) && (math.IsNaN(worstRHat) || r > worstRHat) {
 			worstRHat, rhatName = r, name
 		}
-		if !math.IsNaN(e) && (math.IsNaN(minESS) || e < minESS) {
+		if e := d.ess[k]; !math.IsNaN(e) && (math.IsNaN(minESS) || e < minESS) {
 			minESS, essName = e, name
 		}
 	}
@@ -125,13 +139,12 @@ func (m *monitor) diagnostics(p *Problem) (worstRHat float64, rhatName string, m
 // converged applies the stopping rule: every monitored parameter has a defined R̂ below the
 // threshold and a bulk-ESS above it. A parameter whose diagnostics are undefined (a chain that
 // never moved) does not count as converged.
-func (m *monitor) converged(rule *StopConfig) bool {
+func (m *monitor) converged(rule *StopConfig, d diagnostics) bool {
 	if rule == nil || len(m.params) == 0 {
 		return false
 	}
 	for k := range m.params {
-		r, e := mcmc.RankRHat(m.kept[k]), mcmc.ESSBulk(m.kept[k])
-		if !(r < rule.RHatBelow) || !(e > rule.ESSAbove) {
+		if !(d.rhat[k] < rule.RHatBelow) || !(d.ess[k] > rule.ESSAbove) {
 			return false
 		}
 	}

@@ -468,11 +468,12 @@ func (rs *runState) checkConvergence(bufs [][]draw, until int64) {
 		return
 	}
 	rs.lastDiag = time.Now()
-	r, rn, e, en := rs.mon.diagnostics(rs.prob)
+	d := rs.mon.diagnostics()
+	r, rn, e, en := rs.mon.worst(rs.prob, d)
 	line := fmt.Sprintf("max R̂ %.3f (%s)  min ESS %.0f (%s)", r, rn, e, en)
 	rs.diag.Store(&line)
 	rs.log.Info("convergence", "max_rhat", fmt.Sprintf("%.4f", r), "of", rn, "min_ess_bulk", fmt.Sprintf("%.0f", e), "of_param", en)
-	if rule != nil && rs.mon.converged(rule) {
+	if rule != nil && rs.mon.converged(rule, d) {
 		rs.cp.Converged = true
 	}
 }

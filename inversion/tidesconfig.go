@@ -84,10 +84,8 @@ func (p *Problem) rheologies(st *forward.Structure, x []float64) ([]tides.Rheolo
 }
 
 func (p *Problem) layerNamed(name string) *layerPlan {
-	for i := range p.layers {
-		if p.layers[i].name == name {
-			return &p.layers[i]
-		}
+	if i := p.layerIndex(name); i >= 0 {
+		return &p.layers[i]
 	}
 	return nil
 }
