@@ -359,6 +359,19 @@ type Profile struct {
 	Radius, Density, Vp, Vs, Gravity, Pressure []float64
 }
 
+// newProfile allocates a profile of n nodes in one buffer.
+func newProfile(n int) Profile {
+	buf := make([]float64, 6*n)
+	return Profile{
+		Radius:   buf[0*n : 1*n : 1*n],
+		Density:  buf[1*n : 2*n : 2*n],
+		Vp:       buf[2*n : 3*n : 3*n],
+		Vs:       buf[3*n : 4*n : 4*n],
+		Gravity:  buf[4*n : 5*n : 5*n],
+		Pressure: buf[5*n : 6*n : 6*n],
+	}
+}
+
 // Profile samples the structure with n nodes per layer (n < 2 is taken as 2),
 // evenly spaced in radius from Inner to Outer inclusive. Each internal boundary
 // therefore appears twice, first with the values of the layer below and then
@@ -367,15 +380,7 @@ func (s *Structure) Profile(n int) Profile {
 	n = max(n, 2)
 	L := len(s.Model.Layers)
 	total := n * L
-	buf := make([]float64, 6*total)
-	p := Profile{
-		Radius:   buf[0*total : 1*total : 1*total],
-		Density:  buf[1*total : 2*total : 2*total],
-		Vp:       buf[2*total : 3*total : 3*total],
-		Vs:       buf[3*total : 4*total : 4*total],
-		Gravity:  buf[4*total : 5*total : 5*total],
-		Pressure: buf[5*total : 6*total : 6*total],
-	}
+	p := newProfile(total)
 	idx := 0
 	for i := range s.Model.Layers {
 		l := &s.Model.Layers[i]
@@ -393,6 +398,46 @@ func (s *Structure) Profile(n int) Profile {
 		}
 	}
 	return p
+}
+
+// ProfileAt samples the structure at the given radii (m, any order; radii outside [0, R] are
+// clamped to the centre or surface layer by LayerAt). At an internal boundary the layer below is
+// used, so a fixed radius grid shared by many models gives every model exactly one row per grid
+// radius — the form in which profile ensembles are tabulated for credible bands.
+func (s *Structure) ProfileAt(radii []float64) Profile {
+	total := len(radii)
+	p := newProfile(total)
+	for k, r := range radii {
+		i := s.LayerAt(r, false)
+		l := &s.Model.Layers[i]
+		p.Radius[k] = r
+		p.Density[k] = l.Density.At(r)
+		p.Vp[k] = l.Vp.At(r)
+		if !l.Fluid {
+			p.Vs[k] = l.Vs.At(r)
+		}
+		p.Gravity[k] = s.gravityIn(i, r)
+		p.Pressure[k] = s.pressureIn(i, r)
+	}
+	return p
+}
+
+// RadiusGrid returns the radii 0, step, 2·step, … below radius, then radius itself (m): the
+// fixed grid of profile tables. Each node is k·step computed from the integer k, so grids of
+// different lengths agree node for node. It returns nil unless step > 0 and radius > 0.
+func RadiusGrid(radius, step float64) []float64 {
+	if !(step > 0) || !(radius > 0) || radius/step > 1e7 {
+		return nil
+	}
+	var g []float64
+	for k := 0; ; k++ {
+		r := float64(k) * step
+		if r >= radius*(1-1e-12) {
+			break
+		}
+		g = append(g, r)
+	}
+	return append(g, radius)
 }
 
 // nodeRadius is node k of n ≥ 2 evenly spaced nodes on [inner, outer], the end nodes exactly

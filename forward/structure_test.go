@@ -490,3 +490,74 @@ func TestPolyHelpers(t *testing.T) {
 		checkRel(t, "Linear at midpoint", p.At(mid), 0.5*(c.v0+c.v1), tol)
 	}
 }
+
+// ProfileAt on a fixed grid, against the closed forms of two uniform layers (core ρc to a,
+// mantle ρm to R; derived as in TestTwoLayerUniform): g = 4/3 πGρc r in the core,
+// g = 4/3 πG[(ρc−ρm)a³ + ρm r³]/r² in the mantle; P(r) = P_a + 2/3 πGρc²(a² − r²) in the core,
+// P(r) = 4/3 πGρm[(ρc−ρm)a³(1/r − 1/R) + ρm(R² − r²)/2] in the mantle. A grid node on the
+// boundary takes the layer below (the core).
+func TestProfileAtTwoLayer(t *testing.T) {
+	const a, R, rc, rm = 1500e3, 4000e3, 7500.0, 3300.0
+	m := Model{Layers: []Layer{
+		uniformLayer("core", 0, a, rc, true),
+		uniformLayer("mantle", a, R, rm, false),
+	}}
+	s, err := Solve(m)
+	if err != nil {
+		t.Fatal(err)
+	}
+	grid := RadiusGrid(R, 100e3)
+	if len(grid) != 41 || grid[0] != 0 || grid[15] != a || grid[40] != R {
+		t.Fatalf("grid: %d nodes, [0]=%g [15]=%g last=%g", len(grid), grid[0], grid[15], grid[len(grid)-1])
+	}
+	p := s.ProfileAt(grid)
+	Pa := 4.0 / 3 * math.Pi * G * rm * ((rc-rm)*a*a*a*(1/a-1/R) + rm*(R*R-a*a)/2)
+	for k, r := range grid {
+		var rho, vs, g, P float64
+		if r <= a {
+			rho, vs = rc, 0
+			g = 4.0 / 3 * math.Pi * G * rc * r
+			P = Pa + 2.0/3*math.Pi*G*rc*rc*(a*a-r*r)
+		} else {
+			rho, vs = rm, 3000
+			g = 4.0 / 3 * math.Pi * G * ((rc-rm)*a*a*a + rm*r*r*r) / (r * r)
+			P = 4.0 / 3 * math.Pi * G * rm * ((rc-rm)*a*a*a*(1/r-1/R) + rm*(R*R-r*r)/2)
+		}
+		if p.Radius[k] != r || p.Density[k] != rho || p.Vs[k] != vs || p.Vp[k] != 6000 {
+			t.Errorf("node %d (r=%g): ρ %g vs %g (want %g, %g)", k, r, p.Density[k], p.Vs[k], rho, vs)
+		}
+		if math.Abs(p.Gravity[k]-g) > 1e-12*max(g, 1) {
+			t.Errorf("node %d: g %.15g, want %.15g", k, p.Gravity[k], g)
+		}
+		if math.Abs(p.Pressure[k]-P) > 1e-12*Pa {
+			t.Errorf("node %d: P %.15g, want %.15g", k, p.Pressure[k], P)
+		}
+	}
+}
+
+func TestRadiusGrid(t *testing.T) {
+	cases := []struct {
+		radius, step float64
+		n            int
+		last         float64
+	}{
+		{100, 10, 11, 100},
+		{105, 10, 12, 105},
+		{100, 30, 5, 100},
+		{100, 200, 2, 100},
+		{100, 0, 0, 0},
+		{0, 10, 0, 0},
+		{100, math.NaN(), 0, 0},
+	}
+	for _, c := range cases {
+		g := RadiusGrid(c.radius, c.step)
+		if len(g) != c.n || (c.n > 0 && g[len(g)-1] != c.last) {
+			t.Errorf("RadiusGrid(%g, %g) = %v", c.radius, c.step, g)
+		}
+		for k := 1; k < len(g); k++ {
+			if !(g[k] > g[k-1]) {
+				t.Errorf("RadiusGrid(%g, %g) not increasing: %v", c.radius, c.step, g)
+			}
+		}
+	}
+}

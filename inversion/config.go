@@ -117,6 +117,15 @@ type SamplerConfig struct {
 	// by an independence proposal (a multivariate t fitted to the warm-up) instead of the random
 	// walk; 0 turns these moves off.
 	Independence float64 `mapstructure:"independence" json:"independence" yaml:"independence"`
+	// Anneal is the fraction of warm-up over which each chain switches the likelihood on
+	// gradually (prior × likelihood^β, β from 10⁻⁶ to 1), so that chains started in the prior find
+	// the posterior's main basin instead of a local trap (mcmc.Config.Anneal). Not used by
+	// tempered chains or prior-only runs.
+	Anneal float64 `mapstructure:"anneal" json:"anneal" yaml:"anneal"`
+	// PoolWarmup refits every chain's proposals at the end of warm-up from the warm-up moments of
+	// all chains together (mcmc.PoolWarmup), so that no chain keeps a proposal adapted to the
+	// sliver of the posterior it happened to see.
+	PoolWarmup bool `mapstructure:"pool_warmup" json:"pool_warmup" yaml:"pool_warmup"`
 	// EventBlocks moves each seismic event's sampled source parameters (distance, depth, origin
 	// time) as a block of their own every sweep, besides the joint move: one more model
 	// evaluation per event and sweep, for events whose depth (or distance) is weakly constrained.
@@ -168,6 +177,18 @@ type OutputConfig struct {
 	CheckpointEverySteps int64 `mapstructure:"checkpoint_every_steps" json:"checkpoint_every_steps" yaml:"checkpoint_every_steps"`
 	// LogEverySeconds is the interval of progress lines when not on a terminal.
 	LogEverySeconds float64 `mapstructure:"log_every_s" json:"log_every_s" yaml:"log_every_s"`
+	// Profiles sets the radial-profile table (profiles/).
+	Profiles ProfilesConfig `mapstructure:"profiles" json:"profiles" yaml:"profiles"`
+}
+
+// ProfilesConfig sets the profile ensemble: density, vp, vs, g and P of every EveryDraws-th
+// kept draw on a fixed radius grid, written as the profiles/ Parquet table.
+type ProfilesConfig struct {
+	// EveryDraws profiles the draws whose index is a multiple of it (0: no profile table).
+	EveryDraws int64 `mapstructure:"every_draws" json:"every_draws" yaml:"every_draws"`
+	// RadiusStepKm is the grid step (km); 0 chooses the planet's largest possible radius / 200,
+	// rounded down to 1, 2 or 5 × 10^k km.
+	RadiusStepKm float64 `mapstructure:"radius_step_km" json:"radius_step_km" yaml:"radius_step_km"`
 }
 
 // ConfigError is an input error: it names the file and the key. The CLI exits with status 2.
@@ -190,16 +211,20 @@ func (e *ConfigError) Error() string {
 // defaults are the sampler and output settings a config may omit. Declaring them also lets
 // PLUMB_-prefixed environment variables override these keys (viper only sees known keys).
 var defaultSettings = map[string]any{
-	"sampler.chains":                4,
-	"sampler.warmup_steps":          2000,
-	"sampler.steps":                 10000,
-	"sampler.thin":                  1,
-	"sampler.seed":                  1,
-	"sampler.workers":               0,
-	"sampler.independence":          0.5,
-	"output.dir":                    "run",
-	"output.checkpoint_every_steps": 1000,
-	"output.log_every_s":            10.0,
+	"sampler.chains":                 4,
+	"sampler.warmup_steps":           2000,
+	"sampler.steps":                  10000,
+	"sampler.thin":                   1,
+	"sampler.seed":                   1,
+	"sampler.workers":                0,
+	"sampler.independence":           0.5,
+	"sampler.anneal":                 0.25,
+	"sampler.pool_warmup":            true,
+	"output.dir":                     "run",
+	"output.checkpoint_every_steps":  1000,
+	"output.log_every_s":             10.0,
+	"output.profiles.every_draws":    10,
+	"output.profiles.radius_step_km": 0.0,
 }
 
 // Load reads a config file (YAML, or TOML by extension) strictly: an unknown key is an error.
@@ -227,6 +252,11 @@ type ModelFile struct {
 	Planet PlanetConfig `mapstructure:"planet"`
 	// Layers are listed from the centre outward, every property fixed.
 	Layers []LayerConfig `mapstructure:"layers"`
+	// Seismic may hold the true sources of seismic events when the file is the truth of a
+	// synthetic run (see LoadTruth); a forward evaluation ignores it.
+	Seismic struct {
+		Events []map[string]any `mapstructure:"events"`
+	} `mapstructure:"seismic"`
 }
 
 // LoadModel reads a layered model file (YAML or TOML, strict) and builds it as a problem with no
@@ -237,14 +267,21 @@ func LoadModel(path string) (*Problem, error) {
 	if err := readStrict(viper.New(), path, nil, &m); err != nil {
 		return nil, err
 	}
-	c := &Config{Planet: m.Planet, Layers: m.Layers,
+	return buildFixed(path, m.Planet, m.Layers, "a model file")
+}
+
+// buildFixed builds a planet and its layers, every value fixed (a model file, a truth), as a
+// problem with no sampled parameters and no observations; what names the file kind in the error
+// for a prior.
+func buildFixed(path string, planet PlanetConfig, layers []LayerConfig, what string) (*Problem, error) {
+	c := &Config{Planet: planet, Layers: layers,
 		Sampler: SamplerConfig{Chains: 1, Steps: 1, Thin: 1}, Output: OutputConfig{CheckpointEverySteps: 1, LogEverySeconds: 1}}
 	p, err := Build(c, path)
 	if err != nil {
 		return nil, err
 	}
 	if p.Dim() > 0 {
-		return nil, &ConfigError{File: path, Key: p.keys[0], Msg: "a model file takes fixed values, not priors"}
+		return nil, &ConfigError{File: path, Key: p.keys[0], Msg: what + " takes fixed values, not priors"}
 	}
 	return p, nil
 }

@@ -4,6 +4,7 @@ import (
 	"errors"
 	"fmt"
 	"math"
+	"math/rand/v2"
 	"regexp"
 	"sort"
 	"strings"
@@ -367,10 +368,16 @@ func validateSampler(file string, c *Config) error {
 		return bad("sampler.workers", "%d < 0 (0 means one per core)", s.Workers)
 	case !(s.Independence >= 0 && s.Independence < 1):
 		return bad("sampler.independence", "%g: want a probability in [0, 1)", s.Independence)
+	case !(s.Anneal >= 0 && s.Anneal <= 1):
+		return bad("sampler.anneal", "%g: want a fraction of warm-up in [0, 1]", s.Anneal)
 	case o.CheckpointEverySteps < 1:
 		return bad("output.checkpoint_every_steps", "%d < 1", o.CheckpointEverySteps)
 	case !(o.LogEverySeconds > 0):
 		return bad("output.log_every_s", "%g ≤ 0", o.LogEverySeconds)
+	case o.Profiles.EveryDraws < 0:
+		return bad("output.profiles.every_draws", "%d < 0 (0 switches the profile table off)", o.Profiles.EveryDraws)
+	case !(o.Profiles.RadiusStepKm >= 0) || math.IsInf(o.Profiles.RadiusStepKm, 0):
+		return bad("output.profiles.radius_step_km", "%g: want a step > 0 km (or 0 for automatic)", o.Profiles.RadiusStepKm)
 	}
 	if tp := s.Tempering; tp != nil {
 		switch {
@@ -657,6 +664,24 @@ func (p *Problem) logParts(x, derived []float64, c *structCache) (logPrior, logL
 		}
 	}
 	return lp, ll
+}
+
+// SamplePrior draws x from the prior (mcmc.PriorSampler; tempered chains move their β = 0
+// replica this way).
+func (p *Problem) SamplePrior(r *rand.Rand, x []float64) { p.Space.Sample(r, x) }
+
+// Bounds is the box of the priors' supports (SI; ±Inf for categorical coordinates): the chains
+// reject proposals outside it without evaluating anything and restrict their independence
+// proposals to it (mcmc.Bounded).
+func (p *Problem) Bounds() (lo, hi []float64) {
+	lo, hi = make([]float64, p.Dim()), make([]float64, p.Dim())
+	for i, par := range p.Space.Params {
+		lo[i], hi[i] = math.Inf(-1), math.Inf(1)
+		if par.Levels() == 0 {
+			lo[i], hi[i] = par.Prior.Support()
+		}
+	}
+	return lo, hi
 }
 
 // PriorOnly reports whether the problem ignores its likelihood (sampler.prior_only): the chains

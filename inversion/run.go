@@ -67,6 +67,8 @@ type Checkpoint struct {
 	Complete bool `json:"complete"`
 	// Converged is true when the stopping rule (sampler.stop) ended the run at a checkpoint.
 	Converged bool `json:"converged,omitempty"`
+	// PooledAt lists the sweeps at which the chains' warm-up was pooled (sampler.pool_warmup).
+	PooledAt []int64 `json:"pooled_at,omitempty"`
 }
 
 // Options control how a run executes; none of them changes the draws.
@@ -162,10 +164,15 @@ func chainConfig(cfg *Config, p *Problem) mcmc.Config {
 			sc[i] /= par.Prior.Quantile(0.5)
 		}
 	}
+	anneal := cfg.Sampler.Anneal
+	if p.PriorOnly() {
+		anneal = 0 // nothing to anneal
+	}
 	return mcmc.Config{
 		Warmup: cfg.Sampler.WarmupSteps, Steps: cfg.Sampler.Steps, Thin: cfg.Sampler.Thin,
 		InitialScale: sc, Log: logc, Independence: cfg.Sampler.Independence, Blocks: p.eventBlocks(cfg.Sampler.EventBlocks),
-		Init: func(r *rand.Rand, x []float64) { p.Space.Sample(r, x) },
+		Anneal: anneal,
+		Init:   func(r *rand.Rand, x []float64) { p.Space.Sample(r, x) },
 	}
 }
 
@@ -181,6 +188,8 @@ type runState struct {
 	meta   map[string]string
 	log    *slog.Logger
 	mon    *monitor
+	// grid is the radius grid of the profile table (m; nil when it is off).
+	grid []float64
 	// diag is the latest convergence line for the progress reporter (nil before the first).
 	diag     atomic.Pointer[string]
 	lastDiag time.Time
@@ -198,6 +207,9 @@ func execute(ctx context.Context, dir string, opt Options) error {
 	rs := &runState{dir: dir, cfg: cfg, prob: prob, mc: chainConfig(cfg, prob), log: log}
 	rs.cols = newColumns(prob)
 	if rs.meta, err = runMetadata(dir, cfg); err != nil {
+		return err
+	}
+	if rs.grid, err = prob.ProfileGrid(filepath.Join(dir, ConfigFile), cfg.Output.Profiles); err != nil {
 		return err
 	}
 	if err := rs.restore(); err != nil {
@@ -314,13 +326,15 @@ func (rs *runState) restore() error {
 			}
 		}
 	}
-	// The sample_stats parts carry the names of the sample parts they accompany.
-	stats := filepath.Join(rs.dir, StatsDir)
-	if ents, err := os.ReadDir(stats); err == nil {
-		for _, e := range ents {
-			if !slices.Contains(cp.Parts, e.Name()) {
-				if err := os.Remove(filepath.Join(stats, e.Name())); err != nil {
-					return fmt.Errorf("remove stale stats part: %w", err)
+	// The sample_stats and profiles parts carry the names of the sample parts they accompany.
+	for _, sub := range []string{StatsDir, ProfilesDir} {
+		side := filepath.Join(rs.dir, sub) // (temporary files are not listed parts either)
+		if ents, err := os.ReadDir(side); err == nil {
+			for _, e := range ents {
+				if !slices.Contains(cp.Parts, e.Name()) {
+					if err := os.Remove(filepath.Join(side, e.Name())); err != nil {
+						return fmt.Errorf("remove stale %s part: %w", sub, err)
+					}
 				}
 			}
 		}
@@ -356,6 +370,58 @@ func (rs *runState) writeCheckpoint() error {
 	if err := store.WriteFileAtomic(filepath.Join(rs.dir, CheckpointFile), b, 0o644); err != nil {
 		return fmt.Errorf("write checkpoint: %w", err)
 	}
+	return nil
+}
+
+// poolPoints are the sweeps at which the chains stop together to pool their warm-up
+// (sampler.pool_warmup): half-way through warm-up and at its end (mcmc.PoolWarmup).
+func (rs *runState) poolPoints() []int64 {
+	w := rs.mc.Warmup
+	if !rs.cfg.Sampler.PoolWarmup || w == 0 || len(rs.chains) < 2 {
+		return nil
+	}
+	if w/2 == 0 {
+		return []int64{w}
+	}
+	return []int64{w / 2, w}
+}
+
+// poolWarmup pools the chains' warm-up (mcmc.PoolWarmup) when they have all just reached a pool
+// point that has not been pooled yet. It runs before the checkpoint of that boundary is written,
+// and the checkpoint records the point (PooledAt), so a resumed run pools each point exactly once.
+func (rs *runState) poolWarmup() error {
+	pts := rs.poolPoints()
+	if len(pts) == 0 {
+		return nil
+	}
+	it := rs.chains[0].Iter()
+	if !slices.Contains(pts, it) || slices.Contains(rs.cp.PooledAt, it) {
+		return nil
+	}
+	for _, ch := range rs.chains {
+		if ch.Iter() != it {
+			return nil
+		}
+	}
+	var err error
+	switch rs.chains[0].(type) {
+	case *mcmc.Chain:
+		cs := make([]*mcmc.Chain, len(rs.chains))
+		for i, ch := range rs.chains {
+			cs[i] = ch.(*mcmc.Chain)
+		}
+		err = mcmc.PoolWarmup(cs)
+	case *mcmc.Tempered:
+		ts := make([]*mcmc.Tempered, len(rs.chains))
+		for i, ch := range rs.chains {
+			ts[i] = ch.(*mcmc.Tempered)
+		}
+		err = mcmc.PoolTemperedWarmup(ts)
+	}
+	if err != nil {
+		return err
+	}
+	rs.cp.PooledAt = append(rs.cp.PooledAt, it)
 	return nil
 }
 
@@ -405,6 +471,11 @@ func (rs *runState) loop(ctx context.Context, workers int, opt Options) error {
 			minIter = min(minIter, ch.Iter())
 		}
 		until := (minIter/every + 1) * every
+		for _, p := range rs.poolPoints() {
+			if minIter < p && until > p {
+				until = p // the chains stop together there to pool their warm-up
+			}
+		}
 		bufs := make([][]draw, len(rs.chains))
 		jobs := make(chan int)
 		var wg sync.WaitGroup
@@ -422,6 +493,9 @@ func (rs *runState) loop(ctx context.Context, workers int, opt Options) error {
 		}
 		close(jobs)
 		wg.Wait()
+		if err := rs.poolWarmup(); err != nil {
+			return err
+		}
 		if err := rs.writePart(bufs); err != nil {
 			return err
 		}
@@ -510,6 +584,9 @@ func (rs *runState) writePart(bufs [][]draw) error {
 	batch := rs.cols.batch(bufs)
 	name := store.PartName(rs.cp.NextPart)
 	if err := rs.writeStats(name); err != nil {
+		return err
+	}
+	if err := rs.writeProfiles(name, bufs); err != nil {
 		return err
 	}
 	path := filepath.Join(rs.dir, SamplesDir, name)

@@ -126,18 +126,49 @@ func resumeCmd() *cobra.Command {
 
 func summaryCmd() *cobra.Command {
 	var asJSON bool
+	var markdown, truth string
 	c := &cobra.Command{
 		Use:   "summary RUN_DIR",
 		Short: "Print the posterior of every parameter and of the layer states; write summary.json",
 		Args:  cobra.ExactArgs(1),
 		RunE: func(cmd *cobra.Command, args []string) error {
-			if err := requireRunDir(args[0]); err != nil {
+			dir := args[0]
+			if err := requireRunDir(dir); err != nil {
 				return err
 			}
-			return writeSummary(cmd.OutOrStdout(), args[0], asJSON)
+			w := cmd.OutOrStdout()
+			if asJSON && truth != "" {
+				// One JSON document: {"summary": …, "truth": …}.
+				var sb, tb bytes.Buffer
+				if err := writeSummary(&sb, dir, true); err != nil {
+					return err
+				}
+				if err := summaryTruth(&tb, dir, truth, true); err != nil {
+					return err
+				}
+				_, err := fmt.Fprintf(w, "{\"summary\": %s,\n\"truth\": %s}\n", bytes.TrimSpace(sb.Bytes()), bytes.TrimSpace(tb.Bytes()))
+				if err != nil {
+					return err
+				}
+			} else {
+				if err := writeSummary(w, dir, asJSON); err != nil {
+					return err
+				}
+				if truth != "" {
+					if err := summaryTruth(w, dir, truth, false); err != nil {
+						return err
+					}
+				}
+			}
+			if markdown != "" {
+				return summaryMarkdown(cmd, dir, markdown)
+			}
+			return nil
 		},
 	}
 	c.Flags().BoolVar(&asJSON, "json", false, "print JSON instead of tables")
+	c.Flags().StringVar(&markdown, "markdown", "", "also write a one-page Markdown report (tables and figures) to this file")
+	c.Flags().StringVar(&truth, "truth", "", "truth model of a synthetic run: report the posterior quantile at which each true value falls")
 	return c
 }
 
@@ -206,6 +237,11 @@ func checkCmd() *cobra.Command {
 			}
 			if t := s.Tempering; t != nil {
 				fmt.Fprintf(w, "; tempering with %d replicas per chain", t.Replicas)
+			} else if s.Anneal > 0 && !s.PriorOnly {
+				fmt.Fprintf(w, "; likelihood annealed in over the first %g of warm-up", s.Anneal)
+			}
+			if s.PoolWarmup && s.Chains > 1 && s.Independence > 0 {
+				fmt.Fprint(w, "; independence proposal fitted to all chains' warm-up")
 			}
 			if s.PriorOnly {
 				fmt.Fprint(w, "; PRIOR ONLY (likelihood off)")
@@ -276,7 +312,7 @@ func forwardCmd() *cobra.Command {
 	var model, profile string
 	var asJSON bool
 	var perLayer, degree int
-	var periodH float64
+	var periodH, stepKm float64
 	var tt travelTimeFlags
 	c := &cobra.Command{
 		Use:   "forward --model FILE",
@@ -313,7 +349,15 @@ func forwardCmd() *cobra.Command {
 				}
 			}
 			if profile != "" {
-				if err := writeProfile(profile, st.Profile(perLayer)); err != nil {
+				prof := st.Profile(perLayer)
+				if cmd.Flags().Changed("radius-step-km") {
+					grid := forward.RadiusGrid(st.Radius(), stepKm*1e3)
+					if grid == nil || len(grid) > 1e6 {
+						return usageError{fmt.Errorf("--radius-step-km %g: want a step > 0 km giving at most 10⁶ radii", stepKm)}
+					}
+					prof = st.ProfileAt(grid)
+				}
+				if err := writeProfile(profile, prof); err != nil {
 					return err
 				}
 			}
@@ -372,6 +416,7 @@ func forwardCmd() *cobra.Command {
 	f.BoolVar(&asJSON, "json", false, "print JSON")
 	f.StringVar(&profile, "profile", "", "also write the solved radius/density/vp/vs/g/P profile to this CSV file")
 	f.IntVar(&perLayer, "nodes-per-layer", 2, "profile nodes per layer (with --profile)")
+	f.Float64Var(&stepKm, "radius-step-km", 0, "with --profile: sample on the fixed grid 0, step, 2·step, … and the surface instead (a boundary radius takes the layer below), as a run's profile table does")
 	f.IntVar(&degree, "degree", 2, "degree of the tidal Love numbers (0: skip them)")
 	f.Float64Var(&periodH, "period-h", 0, "tidal forcing period in hours: adds the complex k and Q, layers with a viscosity responding as Maxwell bodies")
 	return c

@@ -95,7 +95,7 @@ func newRoot(ctx context.Context, stdout, stderr io.Writer) *cobra.Command {
 	root.SetErr(stderr)
 	root.SetContext(ctx)
 	root.SetFlagErrorFunc(func(_ *cobra.Command, err error) error { return usageError{err} })
-	root.AddCommand(runCmd(), resumeCmd(), summaryCmd(), checkCmd(), forwardCmd())
+	root.AddCommand(runCmd(), resumeCmd(), summaryCmd(), checkCmd(), forwardCmd(), plotCmd(), synthCmd())
 	for _, c := range root.Commands() {
 		c.Args = wrapArgs(c.Args)
 	}

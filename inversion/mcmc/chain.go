@@ -31,6 +31,16 @@ type Target interface {
 	LogDensity(x, derived []float64) float64
 }
 
+// Bounded is an optional interface of a Target whose density is zero outside a box (for example
+// the support of uniform priors). A chain then rejects a proposal outside the box without
+// evaluating the density (counted as invalid, like any proposal outside the support) and draws
+// its independence proposals from their restriction to the box (see independenceMove). Bounds
+// returns the lower and upper ends per coordinate (±Inf where unbounded; discrete coordinates are
+// ignored); nil slices mean no box.
+type Bounded interface {
+	Bounds() (lo, hi []float64)
+}
+
 // Config sets the length and starting point of a chain.
 type Config struct {
 	// Warmup is the number of adaptation sweeps; their draws are not emitted.
@@ -64,6 +74,11 @@ type Config struct {
 	// block by an independence proposal instead of the random walk (0: never; see
 	// independenceMove). It needs a warm-up to fit the proposal.
 	Independence float64
+	// Anneal is the fraction of warm-up, in [0, 1], over which the likelihood of a Split target is
+	// switched on gradually (ignored for other targets, and so for tempered replicas, whose
+	// ladder does that job): sweep t < Anneal·Warmup samples prior × likelihood^β(t), β rising
+	// geometrically from annealBetaMin to 1. See annealBeta.
+	Anneal float64
 }
 
 // Validate reports a configuration that cannot run.
@@ -79,6 +94,8 @@ func (c Config) Validate() error {
 		return errors.New("no initial-point function")
 	case !(c.Independence >= 0 && c.Independence < 1):
 		return fmt.Errorf("independence-move probability %g not in [0, 1)", c.Independence)
+	case !(c.Anneal >= 0 && c.Anneal <= 1):
+		return fmt.Errorf("annealed fraction of warm-up %g not in [0, 1]", c.Anneal)
 	}
 	return nil
 }
@@ -121,6 +138,11 @@ type AdaptState struct {
 	// or when Config.Independence is 0.
 	IndMean []float64 `json:"ind_mean,omitempty"`
 	IndChol []float64 `json:"ind_chol,omitempty"`
+	// PrevN, PrevMean and PrevCov keep the moments of the window that closed half-way through
+	// warm-up, for PoolWarmup's provisional fit there (cleared when used).
+	PrevN    int64     `json:"prev_n,omitempty"`
+	PrevMean []float64 `json:"prev_mean,omitempty"`
+	PrevCov  []float64 `json:"prev_cov,omitempty"`
 }
 
 // Counters count moves. Index 0 is warm-up, 1 is sampling.
@@ -163,6 +185,9 @@ type State struct {
 	Blocks []AdaptState `json:"blocks,omitempty"`
 	// Counts are the move counters.
 	Counts Counters `json:"counts"`
+	// LogParts are the log prior and log likelihood of the current point while the warm-up is
+	// annealed (Config.Anneal), when LogDensity is their β-weighted sum.
+	LogParts [2]float64 `json:"log_parts,omitzero"`
 }
 
 // Chain is one Markov chain.
@@ -179,6 +204,13 @@ type Chain struct {
 	disc []int   // indices of discrete coordinates
 	lev  []int
 	d0   []float64 // initial proposal variances of the continuous block
+	// lo and hi are the target's box (Bounded), nil without one.
+	lo, hi []float64
+	// split is the target as a Split when the warm-up is annealed, else nil; annealEnd is the
+	// first sweep at β = 1 and beta the current β.
+	split     Split
+	annealEnd int64
+	beta      float64
 
 	// scratch
 	y, dy, z []float64
@@ -226,9 +258,10 @@ func startChain(t Target, cfg Config, pcg *rand.PCG, c int) (*Chain, error) {
 			return nil, fmt.Errorf("chain %d: no valid starting point in %d draws from the initial distribution", c, tries)
 		}
 		cfg.Init(ch.rng, x)
-		lp := t.LogDensity(x, der)
+		ch.setBeta()
+		lp, parts := ch.evaluate(x, der)
 		if !math.IsNaN(lp) && !math.IsInf(lp, -1) && !math.IsInf(lp, 1) {
-			ch.st.X, ch.st.Derived, ch.st.LogDensity = x, der, lp
+			ch.st.X, ch.st.Derived, ch.st.LogDensity, ch.st.LogParts = x, der, lp, parts
 			break
 		}
 	}
@@ -271,6 +304,7 @@ func Restore(t Target, cfg Config, st State) (*Chain, error) {
 	}
 	ch.st = cloneState(st)
 	ch.st.RNG = nil
+	ch.setBeta()
 	return ch, nil
 }
 
@@ -300,6 +334,16 @@ func newChain(t Target, cfg Config, pcg *rand.PCG) *Chain {
 	ch.dy = make([]float64, dc)
 	ch.delta = make([]float64, dc)
 	ch.yDer = make([]float64, t.NumDerived())
+	if b, ok := t.(Bounded); ok {
+		if lo, hi := b.Bounds(); len(lo) == t.Dim() && len(hi) == t.Dim() {
+			ch.lo, ch.hi = lo, hi
+		}
+	}
+	if sp, ok := t.(Split); ok && int64(cfg.Anneal*float64(cfg.Warmup)) > 0 {
+		ch.split = sp
+		ch.annealEnd = int64(cfg.Anneal * float64(cfg.Warmup))
+	}
+	ch.beta = 1
 	ch.all = make([]int, dc)
 	for k := range dc {
 		ch.all[k] = k
@@ -451,9 +495,13 @@ func (ch *Chain) sweep() {
 		phase = 0
 	}
 	c := &ch.st.Counts
+	if ch.split != nil && ch.st.Iter <= ch.annealEnd {
+		ch.anneal()
+	}
 	// The uniform is drawn only when independence moves are on, so that chains without them keep
-	// their random streams.
-	if dc := len(ch.cont); dc > 0 && !warm && ch.cfg.Independence > 0 && len(ch.st.Adapt.IndChol) == dc*dc &&
+	// their random streams. During warm-up they are on only once PoolWarmup has fitted a
+	// provisional proposal half-way through it.
+	if dc := len(ch.cont); dc > 0 && ch.cfg.Independence > 0 && len(ch.st.Adapt.IndChol) == dc*dc &&
 		ch.rng.Float64() < ch.cfg.Independence {
 		c.IndependenceProposed[phase]++
 		if ch.independenceMove(phase) {
@@ -499,6 +547,33 @@ func (ch *Chain) sweep() {
 			ch.fitIndependence()
 		}
 	}
+}
+
+// priorSweep is the sweep of a β = 0 replica whose target can draw from its prior: the whole
+// point is proposed from the prior. At β = 0 the replica's density is the prior restricted to the
+// points with a finite likelihood, so with the prior as an independence proposal the
+// Metropolis–Hastings ratio π(y)q(x)/(π(x)q(y)) is 1 for every valid y: the draw is accepted
+// whenever its likelihood is finite. One evaluation per sweep (the likelihood is needed for the
+// exchanges) instead of a random walk's and a categorical move's, and exact mixing at the hot end
+// of the ladder. No adaptation is needed.
+func (ch *Chain) priorSweep(ps PriorSampler) {
+	phase := 1
+	if ch.st.Iter < ch.cfg.Warmup {
+		phase = 0
+	}
+	c := &ch.st.Counts
+	ps.SamplePrior(ch.rng, ch.y)
+	lp, parts := ch.evaluate(ch.y, ch.yDer)
+	c.IndependenceProposed[phase]++
+	if finite(lp) {
+		copy(ch.st.X, ch.y)
+		ch.st.Derived, ch.yDer = ch.yDer, ch.st.Derived
+		ch.st.LogDensity, ch.st.LogParts = lp, parts
+		c.IndependenceAccepted[phase]++
+	} else {
+		c.Invalid[phase]++
+	}
+	ch.st.Iter++
 }
 
 // Independence proposal. After warm-up the continuous block can also be moved by a proposal that
@@ -550,7 +625,59 @@ func (ch *Chain) covCholesky(a *AdaptState, pos []int, f float64) ([]float64, bo
 // with the Metropolis–Hastings ratio. In working coordinates w the t density is
 // ∝ (1 + |L⁻¹(w − μ)|²/ν)^(−(ν+d)/2); for a Log coordinate the density in x carries the Jacobian
 // 1/x, which adds Σ (w_y − w_x) over those coordinates to the log ratio.
+//
+// With a Bounded target the proposal is redrawn until it falls in the box, i.e. drawn from q
+// restricted to the box, q_B = q·1_B/Z with a constant Z, which cancels from the ratio for the
+// points x, y ∈ B the chain can visit: the kernel stays exact and no move is wasted on a point of
+// zero density (on the demo, whose crust thickness fills its uniform prior, 40 % of the
+// unrestricted proposals fell outside). After maxRedraws misses the move is a rejection; the
+// chance of that does not depend on x, so the kernel is a mixture of the exact kernel and the
+// identity, still invariant.
 func (ch *Chain) independenceMove(phase int) bool {
+	dc := len(ch.cont)
+	a := &ch.st.Adapt
+	// The current point's t quadratic form and log Jacobian part.
+	jac, quadX := 0.0, 0.0
+	for k := range dc {
+		row := a.IndChol[k*dc : k*dc+k+1]
+		wx := ch.st.X[ch.cont[k]]
+		if ch.logc[k] {
+			wx = math.Log(wx)
+			jac -= wx
+		}
+		// Forward substitution L u = w_x − μ, row k (u stored in dy).
+		u := wx - a.IndMean[k]
+		for j := range k {
+			u -= row[j] * ch.dy[j]
+		}
+		ch.dy[k] = u / row[k]
+		quadX += ch.dy[k] * ch.dy[k]
+	}
+	copy(ch.y, ch.st.X)
+	var quadY, jacY float64
+	for try := 0; ; try++ {
+		if try == maxRedraws {
+			ch.st.Counts.Invalid[phase]++
+			return false
+		}
+		quadY, jacY = ch.drawIndependence()
+		if ch.inBox() {
+			break
+		}
+	}
+	e := -0.5 * float64(indDoF+dc)
+	logq := e*math.Log1p(quadX/indDoF) - e*math.Log1p(quadY/indDoF) + jac + jacY
+	return ch.metropolis(phase, logq)
+}
+
+// maxRedraws bounds the redraws of a restricted independence proposal (common practice, no
+// source: a box that catches fewer than 1 in 100 draws of the fitted t means the fit is useless
+// there anyway).
+const maxRedraws = 100
+
+// drawIndependence draws the continuous coordinates of ch.y from the independence proposal and
+// returns the t quadratic form of the draw and Σ log y over Log coordinates.
+func (ch *Chain) drawIndependence() (quad, jac float64) {
 	dc := len(ch.cont)
 	a := &ch.st.Adapt
 	g := 0.0
@@ -564,9 +691,6 @@ func (ch *Chain) independenceMove(phase int) bool {
 		ch.z[k] = ch.rng.NormFloat64()
 		zz += ch.z[k] * ch.z[k]
 	}
-	copy(ch.y, ch.st.X)
-	jac := 0.0
-	quadX := 0.0
 	for k := range dc {
 		row := a.IndChol[k*dc : k*dc+k+1]
 		v := 0.0
@@ -575,26 +699,28 @@ func (ch *Chain) independenceMove(phase int) bool {
 		}
 		i := ch.cont[k]
 		wy := a.IndMean[k] + f*v
-		wx := ch.st.X[i]
 		if ch.logc[k] {
-			wx = math.Log(wx)
 			ch.y[i] = math.Exp(wy)
-			jac += wy - wx
+			jac += wy
 		} else {
 			ch.y[i] = wy
 		}
-		// Forward substitution L u = w_x − μ, row k (u stored in dy).
-		u := wx - a.IndMean[k]
-		for j := range k {
-			u -= row[j] * ch.dy[j]
-		}
-		ch.dy[k] = u / row[k]
-		quadX += ch.dy[k] * ch.dy[k]
 	}
-	quadY := f * f * zz
-	e := -0.5 * float64(indDoF+dc)
-	logq := e*math.Log1p(quadX/indDoF) - e*math.Log1p(quadY/indDoF) + jac
-	return ch.metropolis(phase, logq)
+	return f * f * zz, jac
+}
+
+// inBox reports whether the continuous coordinates of ch.y lie in the target's box (always true
+// without one). NaN is outside.
+func (ch *Chain) inBox() bool {
+	if ch.lo == nil {
+		return true
+	}
+	for _, i := range ch.cont {
+		if !(ch.y[i] >= ch.lo[i] && ch.y[i] <= ch.hi[i]) {
+			return false
+		}
+	}
+	return true
 }
 
 // rwMove is an adaptive random-walk Metropolis move of the continuous coordinates at positions
@@ -624,9 +750,18 @@ func (ch *Chain) rwMove(a *AdaptState, pos []int, phase int, warm bool) bool {
 			ch.y[i] += s * v
 		}
 	}
-	acc := ch.metropolis(phase, logq)
+	acc := false
+	if ch.inBox() {
+		acc = ch.metropolis(phase, logq)
+	} else {
+		ch.st.Counts.Invalid[phase]++
+	}
 	if warm {
-		gain := math.Pow(float64(ch.st.Iter+1), -robbinsMonroEx)
+		t := ch.st.Iter + 1
+		if ch.split != nil && ch.st.Iter >= ch.annealEnd {
+			t -= ch.annealEnd // adaptation restarted at the end of annealing
+		}
+		gain := math.Pow(float64(t), -robbinsMonroEx)
 		r := 0.0
 		if acc {
 			r = 1
@@ -639,7 +774,7 @@ func (ch *Chain) rwMove(a *AdaptState, pos []int, phase int, warm bool) bool {
 // metropolis evaluates the proposal in ch.y and accepts it with probability
 // min(1, p(y)/p(x)·exp(logq)), logq being the log Hastings ratio of the proposal.
 func (ch *Chain) metropolis(phase int, logq float64) bool {
-	lp := ch.t.LogDensity(ch.y, ch.yDer)
+	lp, parts := ch.evaluate(ch.y, ch.yDer)
 	u := ch.rng.Float64()
 	if math.IsNaN(lp) || math.IsInf(lp, 0) {
 		// +Inf is as unusable as NaN: a density cannot be infinite at a sampled point.
@@ -649,10 +784,64 @@ func (ch *Chain) metropolis(phase int, logq float64) bool {
 	if math.Log(u) < lp-ch.st.LogDensity+logq {
 		copy(ch.st.X, ch.y)
 		ch.st.Derived, ch.yDer = ch.yDer, ch.st.Derived
-		ch.st.LogDensity = lp
+		ch.st.LogDensity, ch.st.LogParts = lp, parts
 		return true
 	}
 	return false
+}
+
+// Annealed warm-up. A chain started from the prior can settle in a local mode of the
+// likelihood — the demo's travel times have such traps, with log likelihoods 100+ below the
+// posterior's — and a random walk never leaves it (R̂ then flags the run, but the run is lost).
+// Raising the likelihood's weight gradually lets the chain find the main basin while the
+// density is still broad and follow it as it narrows: simulated annealing (Kirkpatrick, Gelatt &
+// Vecchi 1983) used only to reach the typical set. It touches warm-up alone, whose draws are
+// discarded; from annealEnd on the chain samples the posterior itself, and the moment windows
+// restart at W/4 and W/2, so the adapted proposal does not remember the annealed densities when
+// Anneal ≤ 1/4. The start β and the geometric schedule are our choice (a prior draw typically
+// has log likelihood −10⁴…−10⁶ on the demo, so β = 10⁻⁶ starts close to the prior).
+const annealBetaMin = 1e-6
+
+// annealBeta is β at sweep it: annealBetaMin^(1 − it/annealEnd) before annealEnd, then 1.
+func (ch *Chain) annealBeta(it int64) float64 {
+	if ch.split == nil || it >= ch.annealEnd {
+		return 1
+	}
+	return math.Pow(annealBetaMin, 1-float64(it)/float64(ch.annealEnd))
+}
+
+// setBeta sets β for the current sweep.
+func (ch *Chain) setBeta() { ch.beta = ch.annealBeta(ch.st.Iter) }
+
+// anneal moves the current point to this sweep's β: its density is re-weighted from the stored
+// parts, and at annealEnd evaluated afresh by the target's own LogDensity, so that the density
+// of the post-annealing chain is exactly the unannealed one.
+func (ch *Chain) anneal() {
+	ch.setBeta()
+	if ch.st.Iter == ch.annealEnd {
+		ch.st.LogDensity = ch.t.LogDensity(ch.st.X, ch.st.Derived)
+		ch.st.LogParts = [2]float64{}
+		// The proposals adapted to the broad annealed densities (their global scales grow by
+		// orders of magnitude while β is small, and the Robbins–Monro gain has decayed by the
+		// time β = 1): adaptation starts afresh here, as at sweep 0.
+		ch.resetMoments()
+		ch.setInitialProposal()
+		return
+	}
+	ch.st.LogDensity = ch.st.LogParts[0] + ch.beta*ch.st.LogParts[1]
+}
+
+// evaluate returns the chain's log density at x (filling derived) and, while annealing, its log
+// prior and log likelihood.
+func (ch *Chain) evaluate(x, derived []float64) (float64, [2]float64) {
+	if ch.beta == 1 {
+		return ch.t.LogDensity(x, derived), [2]float64{}
+	}
+	lp, ll := ch.split.LogParts(x, derived)
+	if !finite(lp) || !finite(ll) {
+		return math.Inf(-1), [2]float64{}
+	}
+	return lp + ch.beta*ll, [2]float64{lp, ll}
 }
 
 // adapt updates the running moments with the current point, restarts them at the window
@@ -662,6 +851,10 @@ func (ch *Chain) adapt() {
 		return
 	}
 	it, w := ch.st.Iter, ch.cfg.Warmup
+	if it == w/2 {
+		a := &ch.st.Adapt
+		a.PrevN, a.PrevMean, a.PrevCov = a.N, append([]float64(nil), a.Mean...), append([]float64(nil), a.Cov...)
+	}
 	if it == w/4 || it == w/2 {
 		ch.resetMoments()
 	}

@@ -133,6 +133,17 @@ func (m mixed) LogDensity(x, _ []float64) float64 {
 	return math.Log(m.w[k]) - 0.5*d*d
 }
 
+// LogParts splits the density as log prior log w_k and log likelihood −d²/2 (Split), for the
+// annealed warm-up.
+func (m mixed) LogParts(x, d []float64) (float64, float64) {
+	lp := m.LogDensity(x, d)
+	if math.IsInf(lp, -1) {
+		return lp, 0
+	}
+	w := math.Log(m.w[int(x[1])])
+	return w, lp - w
+}
+
 func TestDiscreteMarginal(t *testing.T) {
 	tg := mixed{w: []float64{0.2, 0.5, 0.3}, m: []float64{0, 0.5, 1}}
 	cfg := Config{Warmup: 2000, Steps: 60000, Thin: 1, InitialScale: []float64{1, 0},
@@ -161,19 +172,20 @@ func TestDiscreteMarginal(t *testing.T) {
 // emit exactly the draws of an uninterrupted chain, bit for bit.
 func TestResumeEqualsUninterrupted(t *testing.T) {
 	for _, c := range []struct {
-		ind    float64
-		blocks [][]int
-	}{{0, nil}, {0.5, nil}, {0.5, [][]int{{0}}}} {
-		checkChainResume(t, c.ind, c.blocks)
+		ind, anneal float64
+		blocks      [][]int
+	}{{0, 0, nil}, {0.5, 0, nil}, {0.5, 0, [][]int{{0}}}, {0.5, 0.5, nil}} {
+		checkChainResume(t, c.ind, c.anneal, c.blocks)
 	}
 }
 
-// checkChainResume cuts a chain (independence-move probability ind, extra blocks) at awkward points — around
-// the end of warm-up, where the independence proposal is fitted — and requires the draws and the
-// final state of an uninterrupted chain.
-func checkChainResume(t *testing.T, ind float64, blocks [][]int) {
+// checkChainResume cuts a chain (independence-move probability ind, annealed fraction of warm-up,
+// extra blocks) at awkward points — inside and at the end of the annealing (sweep 150 with
+// anneal 0.5), around the end of warm-up, where the independence proposal is fitted — and requires
+// the draws and the final state of an uninterrupted chain.
+func checkChainResume(t *testing.T, ind, anneal float64, blocks [][]int) {
 	tg := mixed{w: []float64{0.2, 0.5, 0.3}, m: []float64{0, 0.5, 1}}
-	cfg := Config{Warmup: 300, Steps: 700, Thin: 3, InitialScale: []float64{1, 0}, Independence: ind, Blocks: blocks,
+	cfg := Config{Warmup: 300, Steps: 700, Thin: 3, InitialScale: []float64{1, 0}, Independence: ind, Blocks: blocks, Anneal: anneal,
 		Init: func(r *rand.Rand, x []float64) { x[0] = r.NormFloat64(); x[1] = float64(r.IntN(3)) }}
 	type row struct {
 		draw int64
@@ -379,4 +391,145 @@ func TestBlocksInvalid(t *testing.T) {
 			t.Errorf("blocks %v: no error", blocks)
 		}
 	}
+}
+
+// The annealed warm-up reaches the posterior's main basin from a start in a local trap, where a
+// plain random walk stays: the target is a narrow Gaussian likelihood at x = 0 plus a shallow,
+// far narrower trap at x = 8 (log likelihood −40 there, a local maximum), under a flat-ish prior
+// N(0, 10²). Every chain starts in the trap. Without annealing the trap holds the chains through
+// warm-up; with it (β from 10⁻⁶) the chains see the prior first and settle in the main basin.
+func TestAnnealEscapesTrap(t *testing.T) {
+	tg := trapTarget{}
+	for _, c := range []struct {
+		anneal  float64
+		escaped bool
+	}{{0, false}, {0.5, true}} {
+		cfg := Config{Warmup: 2000, Steps: 1000, Thin: 10, InitialScale: []float64{0.05}, Anneal: c.anneal,
+			Init: func(_ *rand.Rand, x []float64) { x[0] = 8 }}
+		for seed := range uint64(4) {
+			ch, err := NewChain(tg, cfg, seed, 0)
+			if err != nil {
+				t.Fatal(err)
+			}
+			ch.Advance(cfg.Warmup, nil, nil)
+			if got := math.Abs(ch.State().X[0]) < 2; got != c.escaped {
+				t.Errorf("anneal %g, seed %d: at the end of warm-up x = %.3g; want it in the main basin: %v",
+					c.anneal, seed, ch.State().X[0], c.escaped)
+			}
+		}
+	}
+}
+
+// trapTarget: prior N(0, 10²); log likelihood max(−x²/2·100, −40 − (x−8)²/2·10⁴), i.e. a narrow
+// main basin at 0 (sd 0.1) and a trap at 8 (sd 0.01) 40 nats lower.
+type trapTarget struct{}
+
+func (trapTarget) Dim() int        { return 1 }
+func (trapTarget) Levels() []int   { return []int{0} }
+func (trapTarget) NumDerived() int { return 0 }
+func (g trapTarget) LogDensity(x, d []float64) float64 {
+	lp, ll := g.LogParts(x, d)
+	return lp + ll
+}
+func (trapTarget) LogParts(x, _ []float64) (float64, float64) {
+	main := -0.5 * x[0] * x[0] * 100
+	trap := -40 - 0.5*(x[0]-8)*(x[0]-8)*1e4
+	return -0.5 * x[0] * x[0] / 100, math.Max(main, trap)
+}
+
+// PoolWarmup's moments are those of all chains' windows together (law of total covariance),
+// checked against the moments of the concatenated samples.
+func TestPoolMoments(t *testing.T) {
+	r := rand.New(rand.NewPCG(1, 2))
+	var all [][2]float64
+	var as []*AdaptState
+	for c, n := range []int{50, 120, 7} {
+		a := &AdaptState{Mean: make([]float64, 2), Cov: make([]float64, 4)}
+		for range n {
+			x := [2]float64{r.NormFloat64() + float64(c), 3*r.NormFloat64() - float64(c*c)}
+			x[1] += x[0]
+			all = append(all, x)
+			// Welford, divisor N, as adaptBlock does.
+			a.N++
+			k := float64(a.N)
+			var dl [2]float64
+			for i := range 2 {
+				dl[i] = x[i] - a.Mean[i]
+				a.Mean[i] += dl[i] / k
+			}
+			for i := range 2 {
+				for j := range 2 {
+					a.Cov[i*2+j] += ((k-1)/k*dl[i]*dl[j] - a.Cov[i*2+j]) / k
+				}
+			}
+		}
+		as = append(as, a)
+	}
+	p, err := poolMoments(as)
+	if err != nil {
+		t.Fatal(err)
+	}
+	var mu [2]float64
+	for _, x := range all {
+		mu[0] += x[0] / float64(len(all))
+		mu[1] += x[1] / float64(len(all))
+	}
+	for i := range 2 {
+		if math.Abs(p.Mean[i]-mu[i]) > 1e-12*math.Max(1, math.Abs(mu[i])) {
+			t.Errorf("mean %d: %g, want %g", i, p.Mean[i], mu[i])
+		}
+		for j := range 2 {
+			c := 0.0
+			for _, x := range all {
+				c += (x[i] - mu[i]) * (x[j] - mu[j]) / float64(len(all))
+			}
+			if math.Abs(p.Cov[i*2+j]-c) > 1e-11*math.Max(1, math.Abs(c)) {
+				t.Errorf("cov %d%d: %g, want %g", i, j, p.Cov[i*2+j], c)
+			}
+		}
+	}
+	if p.N != int64(len(all)) {
+		t.Errorf("N = %d, want %d", p.N, len(all))
+	}
+}
+
+// PoolWarmup pools only chains that are all half-way through warm-up or all at its end; half-way
+// it gives them a shared provisional independence proposal (used in the rest of warm-up), at the
+// end the final one.
+func TestPoolWarmupPoints(t *testing.T) {
+	tg := newGauss2([2]float64{0, 0}, [2]float64{1, 1}, 0)
+	cfg := Config{Warmup: 200, Steps: 100, Thin: 1, Independence: 0.5,
+		Init: func(r *rand.Rand, x []float64) { x[0], x[1] = r.NormFloat64(), r.NormFloat64() }}
+	a, _ := NewChain(tg, cfg, 1, 0)
+	b, _ := NewChain(tg, cfg, 1, 1)
+	a.Advance(100, nil, nil)
+	b.Advance(99, nil, nil)
+	if err := PoolWarmup([]*Chain{a, b}); err == nil {
+		t.Error("pooled chains at sweeps 100 and 99")
+	}
+	b.Advance(100, nil, nil)
+	if err := PoolWarmup([]*Chain{a, b}); err != nil {
+		t.Fatal(err)
+	}
+	shared := func(when string) {
+		sa, sb := a.State().Adapt, b.State().Adapt
+		if !reflect.DeepEqual(sa.IndChol, sb.IndChol) || len(sa.IndChol) != 4 || sa.PrevN != 0 {
+			t.Errorf("%s: pooled chains do not share one independence proposal", when)
+		}
+	}
+	shared("half-way")
+	a.Advance(150, nil, nil)
+	b.Advance(150, nil, nil)
+	if err := PoolWarmup([]*Chain{a, b}); err == nil {
+		t.Error("pooled chains at sweep 150, neither half-way nor at the end of warm-up")
+	}
+	if k := a.State().Counts; k.IndependenceProposed[0] == 0 {
+		t.Error("no independence moves in the second half of warm-up after the provisional fit")
+	}
+	a.Advance(200, nil, nil)
+	b.Advance(200, nil, nil)
+	if err := PoolWarmup([]*Chain{a, b}); err != nil {
+		t.Fatal(err)
+	}
+	shared("end")
 }

@@ -61,6 +61,9 @@ type sbcModel struct {
 	w     []float64 // prior weights of the components (sum 1)
 	tau   float64   // prior standard deviation of log s
 	sigma float64   // noise standard deviation of the simulated data
+	// aMax, when positive, truncates the prior of a to [−aMax, aMax] (a box the chain sees
+	// through Bounded; see sbcBounded).
+	aMax float64
 }
 
 func newSBCModel() sbcModel {
@@ -81,6 +84,9 @@ var sbcNames = [sbcDim]string{"a", "s (log-scale moves)", "k (categorical)"}
 // draw fills theta = (a, s, k) from the prior.
 func (m sbcModel) draw(r *rand.Rand, theta []float64) {
 	theta[0] = r.NormFloat64()
+	for m.aMax > 0 && math.Abs(theta[0]) > m.aMax {
+		theta[0] = r.NormFloat64() // truncated normal by rejection
+	}
 	theta[1] = math.Exp(m.tau * r.NormFloat64())
 	u, k := r.Float64(), 0
 	for k < len(m.w)-1 && u >= m.w[k] {
@@ -114,18 +120,32 @@ type sbcPosterior struct {
 func (p sbcPosterior) Dim() int        { return sbcDim }
 func (p sbcPosterior) Levels() []int   { return []int{0, 0, len(p.m.w)} }
 func (p sbcPosterior) NumDerived() int { return 0 }
-func (p sbcPosterior) LogDensity(x, _ []float64) float64 {
+func (p sbcPosterior) LogDensity(x, d []float64) float64 {
+	lp, ll := p.LogParts(x, d)
+	return lp + ll
+}
+
+// LogParts splits the density into prior and likelihood (Split), for the annealed warm-up.
+func (p sbcPosterior) LogParts(x, _ []float64) (float64, float64) {
 	a, s, k := x[0], x[1], int(x[2])
-	if !(s > 0) {
-		return math.Inf(-1)
+	if !(s > 0) || (p.m.aMax > 0 && math.Abs(a) > p.m.aMax) {
+		return math.Inf(-1), 0
 	}
 	ls := math.Log(s) / p.m.tau
 	lp := -0.5*a*a - math.Log(s) - 0.5*ls*ls + math.Log(p.m.w[k])
+	ll := 0.0
 	for j, yj := range p.y {
 		r := (yj - p.m.mean(x, j)) / p.sigmaLik
-		lp -= 0.5 * r * r
+		ll -= 0.5 * r * r
 	}
-	return lp
+	return lp, ll
+}
+
+// sbcBounded is the posterior with its box declared (Bounded): a ∈ [−aMax, aMax], s > 0.
+type sbcBounded struct{ sbcPosterior }
+
+func (b sbcBounded) Bounds() (lo, hi []float64) {
+	return []float64{-b.m.aMax, 0, math.Inf(-1)}, []float64{b.m.aMax, math.Inf(1), math.Inf(1)}
 }
 
 // sbcNoHastings multiplies a target by 1/x_i for its log-scale coordinate i. A multiplicative random
@@ -152,6 +172,11 @@ type sbcSetup struct {
 	independence float64
 	// blocks is Config.Blocks.
 	blocks [][]int
+	// anneal is Config.Anneal.
+	anneal float64
+	// pool runs two chains per replication, pools their warm-up half-way and at its end
+	// (PoolWarmup) and keeps the draws of the first.
+	pool bool
 }
 
 // sbcResult holds, per parameter, the ranks of θ* and the thinning check.
@@ -177,6 +202,7 @@ func sbcRun(t *testing.T, m sbcModel, setup sbcSetup, target func(y []float64) T
 		Init:         func(r *rand.Rand, x []float64) { m.draw(r, x) },
 		Independence: setup.independence,
 		Blocks:       setup.blocks,
+		Anneal:       setup.anneal,
 	}
 	var res sbcResult
 	lag1 := make([][sbcDim]float64, setup.reps)
@@ -229,6 +255,19 @@ func sbcReplicate(m sbcModel, cfg Config, setup sbcSetup, n int, target func([]f
 	ch, err := NewChain(target(y), cfg, setup.seed, n)
 	if err != nil {
 		return fmt.Errorf("replication %d: %w", n, err)
+	}
+	if setup.pool {
+		other, err := NewChain(target(y), cfg, setup.seed, n+setup.reps)
+		if err != nil {
+			return fmt.Errorf("replication %d: %w", n, err)
+		}
+		for _, at := range []int64{cfg.Warmup / 2, cfg.Warmup} { // as a run does
+			ch.Advance(at, nil, nil)
+			other.Advance(at, nil, nil)
+			if err := PoolWarmup([]*Chain{ch, other}); err != nil {
+				return fmt.Errorf("replication %d: %w", n, err)
+			}
+		}
 	}
 	var kept [sbcDim][]float64
 	ch.Advance(cfg.Total(), nil, func(_ int64, x, _ []float64, _ float64) {
@@ -328,18 +367,32 @@ func TestSBC(t *testing.T) {
 // a block of its own every sweep (Config.Blocks): the rank histograms must be uniform too.
 func TestSBCMoveVariants(t *testing.T) {
 	m := newSBCModel()
+	boxed := m
+	boxed.aMax = 0.8 // P(|a| > 0.8) ≈ 0.42 under N(0, 1): the t proposals often leave the box
 	for _, c := range []struct {
 		name         string
 		independence float64
 		blocks       [][]int
+		anneal       float64
+		pool         bool
+		model        sbcModel
+		target       func(m sbcModel, y []float64) Target
 	}{
-		{"independence moves", 0.5, nil},
-		{"extra blocks", 0, [][]int{{0}, {1}}},
+		{"independence moves", 0.5, nil, 0, false, m, nil},
+		{"extra blocks", 0, [][]int{{0}, {1}}, 0, false, m, nil},
+		{"annealed warm-up", 0.5, nil, 0.25, false, m, nil},
+		{"pooled warm-up", 0.5, nil, 0, true, m, nil},
+		{"box: independence proposals restricted", 0.5, nil, 0, false, boxed,
+			func(m sbcModel, y []float64) Target { return sbcBounded{sbcPosterior{m: m, y: y, sigmaLik: m.sigma}} }},
 	} {
 		t.Run(c.name, func(t *testing.T) {
 			setup := sbcDefaultSetup()
-			setup.independence, setup.blocks = c.independence, c.blocks
-			res := sbcRun(t, m, setup, func(y []float64) Target { return sbcPosterior{m: m, y: y, sigmaLik: m.sigma} })
+			setup.independence, setup.blocks, setup.anneal, setup.pool = c.independence, c.blocks, c.anneal, c.pool
+			mk := c.target
+			if mk == nil {
+				mk = func(m sbcModel, y []float64) Target { return sbcPosterior{m: m, y: y, sigmaLik: m.sigma} }
+			}
+			res := sbcRun(t, c.model, setup, func(y []float64) Target { return mk(c.model, y) })
 			for i, p := range sbcReport(t, c.name, setup, res) {
 				if !(p > 0.01) {
 					t.Errorf("%s: χ² p = %.3g ≤ 0.01 with %s", sbcNames[i], p, c.name)

@@ -39,6 +39,13 @@ import (
 	"math/rand/v2"
 )
 
+// PriorSampler is an optional interface of a Split target that can draw exactly from its prior
+// (the density exp(logPrior), in the target's own coordinates). A tempered chain then moves its
+// β = 0 replica by such draws (see Chain.priorSweep).
+type PriorSampler interface {
+	SamplePrior(r *rand.Rand, x []float64)
+}
+
 // Split is a Target whose log density is a log prior plus a log likelihood, so that it can be
 // tempered.
 type Split interface {
@@ -106,6 +113,14 @@ type temperedView struct {
 	t    Split
 	n    int // the target's number of derived values
 	beta float64
+}
+
+// Bounds passes the target's box through (Bounded), so that tempered replicas use it too.
+func (v *temperedView) Bounds() (lo, hi []float64) {
+	if b, ok := v.t.(Bounded); ok {
+		return b.Bounds()
+	}
+	return nil, nil
 }
 
 func (v *temperedView) Dim() int        { return v.t.Dim() }
@@ -375,8 +390,13 @@ func (tp *Tempered) sweep() {
 	if warm {
 		phase = 0
 	}
-	for _, ch := range tp.reps {
-		ch.sweep()
+	prior, _ := tp.t.(PriorSampler)
+	for k, ch := range tp.reps {
+		if k == len(tp.reps)-1 && prior != nil && tp.st.Betas[k] == 0 {
+			ch.priorSweep(prior)
+		} else {
+			ch.sweep()
+		}
 	}
 	tp.exchange(phase)
 	if warm && tp.tc.AdaptLadder && len(tp.reps) > 2 {

@@ -104,21 +104,40 @@ func symDense(d int, v []float64) *mat.SymDense {
 // discretisation error estimate grew to 0.20 (actual error 0.07) — correct, but not a useful bar.
 // Adapted ladders differ per chain, so those cases use EvidenceLadders; the fixed-ladder case uses
 // Evidence.
+// gaussSplitPrior is gaussSplit with exact prior draws (PriorSampler); the prior's covariance
+// must be diagonal.
+type gaussSplitPrior struct {
+	gaussSplit
+	mu, cov []float64
+}
+
+func (g gaussSplitPrior) SamplePrior(r *rand.Rand, x []float64) {
+	d := len(g.mu)
+	for i := range x {
+		x[i] = g.mu[i] + math.Sqrt(g.cov[i*d+i])*r.NormFloat64()
+	}
+}
+
 func TestTemperedGaussianEvidence(t *testing.T) {
 	cases := []struct {
 		name            string
 		mu0, cov0, y, s []float64
 		adapt           bool
 		K               int
+		priorDraws      bool // the target is a PriorSampler: the β = 0 replica draws from the prior
 	}{
-		{"1D", []float64{1}, []float64{9}, []float64{-2}, []float64{0.25}, true, 8},
-		{"2D correlated likelihood, fixed ladder", []float64{0, 2}, []float64{16, 0, 0, 4}, []float64{1.5, -1}, []float64{0.5, 0.3, 0.3, 0.4}, false, 8},
-		{"3D", []float64{0, 0, 5}, []float64{25, 0, 0, 0, 1, 0, 0, 0, 4}, []float64{3, 0.5, 2}, []float64{0.09, 0, 0, 0, 0.5, 0, 0, 0, 0.2}, true, 12},
+		{"1D", []float64{1}, []float64{9}, []float64{-2}, []float64{0.25}, true, 8, false},
+		{"2D correlated likelihood, fixed ladder", []float64{0, 2}, []float64{16, 0, 0, 4}, []float64{1.5, -1}, []float64{0.5, 0.3, 0.3, 0.4}, false, 8, false},
+		{"3D", []float64{0, 0, 5}, []float64{25, 0, 0, 0, 1, 0, 0, 0, 4}, []float64{3, 0.5, 2}, []float64{0.09, 0, 0, 0, 0.5, 0, 0, 0, 0.2}, true, 12, false},
+		{"3D, prior draws at β = 0", []float64{0, 0, 5}, []float64{25, 0, 0, 0, 1, 0, 0, 0, 4}, []float64{3, 0.5, 2}, []float64{0.09, 0, 0, 0, 0.5, 0, 0, 0, 0.2}, true, 12, true},
 	}
 	for ci, tc := range cases {
 		t.Run(tc.name, func(t *testing.T) {
 			d := len(tc.mu0)
-			tg := gaussSplit{prior: newMVN(tc.mu0, tc.cov0), lik: newMVN(tc.y, tc.s)}
+			var tg Split = gaussSplit{prior: newMVN(tc.mu0, tc.cov0), lik: newMVN(tc.y, tc.s)}
+			if tc.priorDraws {
+				tg = gaussSplitPrior{gaussSplit: tg.(gaussSplit), mu: tc.mu0, cov: tc.cov0}
+			}
 			sum := make([]float64, d*d)
 			for i := range sum {
 				sum[i] = tc.cov0[i] + tc.s[i]
