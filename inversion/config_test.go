@@ -264,6 +264,14 @@ func TestConfigErrors(t *testing.T) {
 			"", []string{"sampler.chains"}},
 		{"bad seed type", func(s string) string { return strings.Replace(s, "seed: 11", "seed: eleven", 1) },
 			"", []string{"sampler.seed"}},
+		{"anneal beyond warm-up", func(s string) string { return strings.Replace(s, "  seed: 11", "  seed: 11\n  anneal: 1.5", 1) },
+			"", []string{"sampler.anneal", "1.5"}},
+		{"pool_warmup not a switch", func(s string) string { return strings.Replace(s, "  seed: 11", "  seed: 11\n  pool_warmup: often", 1) },
+			"", []string{"sampler", "pool_warmup"}},
+		{"profile every negative", func(s string) string { return s + "  profiles: {every_draws: -1}\n" },
+			"", []string{"output.profiles.every_draws", "-1"}},
+		{"profile step negative", func(s string) string { return s + "  profiles: {radius_step_km: -5}\n" },
+			"", []string{"output.profiles.radius_step_km", "-5"}},
 		{"bad format", nil, "c.json", []string{"c.json", "unknown file format"}},
 	}
 	for _, tc := range cases {

@@ -42,11 +42,11 @@ func profileColumns() []store.Column {
 	}
 }
 
-// ProfileGrid returns the radius grid (m) of the run's profile table: forward.RadiusGrid up to the
+// profileGrid returns the radius grid (m) of the run's profile table: forward.RadiusGrid up to the
 // largest radius the planet can have, with the configured step or the automatic one (that
 // radius / 200, rounded down to 1, 2 or 5 × 10^k km, so grids are round numbers). nil when the
 // table is off. file names the config in errors.
-func (p *Problem) ProfileGrid(file string, pc ProfilesConfig) ([]float64, error) {
+func (p *Problem) profileGrid(file string, pc ProfilesConfig) ([]float64, error) {
 	if pc.EveryDraws == 0 {
 		return nil, nil
 	}
@@ -80,9 +80,9 @@ func roundStep(v float64) float64 {
 	return e * 1e3
 }
 
-// ProfileRows appends the profile of one draw (structure st) on grid to the batch: one row per
+// profileRows appends the profile of one draw (structure st) on grid to the batch: one row per
 // grid radius not above the surface, at a layer boundary the layer below.
-func ProfileRows(b *store.Batch, chain, draw int64, st *forward.Structure, grid []float64) {
+func profileRows(b *store.Batch, chain, draw int64, st *forward.Structure, grid []float64) {
 	n := len(grid)
 	for n > 0 && grid[n-1] > st.Radius() {
 		n--
@@ -127,7 +127,7 @@ func (rs *runState) writeProfiles(name string, bufs [][]draw) error {
 				// Cannot happen for an accepted draw (its density was finite); say so loudly.
 				return fmt.Errorf("profile of chain %d draw %d: %w", c, d.index, err)
 			}
-			ProfileRows(b, int64(c), d.index, st, rs.grid)
+			profileRows(b, int64(c), d.index, st, rs.grid)
 		}
 	}
 	if b.Len() == 0 {

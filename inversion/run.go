@@ -7,7 +7,6 @@ import (
 	"fmt"
 	"io"
 	"log/slog"
-	"math/rand/v2"
 	"os"
 	"path/filepath"
 	"runtime"
@@ -172,7 +171,7 @@ func chainConfig(cfg *Config, p *Problem) mcmc.Config {
 		Warmup: cfg.Sampler.WarmupSteps, Steps: cfg.Sampler.Steps, Thin: cfg.Sampler.Thin,
 		InitialScale: sc, Log: logc, Independence: cfg.Sampler.Independence, Blocks: p.eventBlocks(cfg.Sampler.EventBlocks),
 		Anneal: anneal,
-		Init:   func(r *rand.Rand, x []float64) { p.Space.Sample(r, x) },
+		Init:   p.SamplePrior,
 	}
 }
 
@@ -209,7 +208,7 @@ func execute(ctx context.Context, dir string, opt Options) error {
 	if rs.meta, err = runMetadata(dir, cfg); err != nil {
 		return err
 	}
-	if rs.grid, err = prob.ProfileGrid(filepath.Join(dir, ConfigFile), cfg.Output.Profiles); err != nil {
+	if rs.grid, err = prob.profileGrid(filepath.Join(dir, ConfigFile), cfg.Output.Profiles); err != nil {
 		return err
 	}
 	if err := rs.restore(); err != nil {
@@ -314,27 +313,24 @@ func (rs *runState) restore() error {
 	}
 	rs.cp = cp
 	rs.mon = newMonitor(rs.prob, len(rs.chains))
-	ents, err := os.ReadDir(samples)
-	if err != nil {
-		return fmt.Errorf("samples folder: %w", err)
-	}
-	for _, e := range ents {
-		if !slices.Contains(cp.Parts, e.Name()) {
-			rs.log.Info("removing sample part written after the last checkpoint", "file", e.Name())
-			if err := os.Remove(filepath.Join(samples, e.Name())); err != nil {
-				return fmt.Errorf("remove stale part: %w", err)
+	// Parts written after the last checkpoint (a crash between part and checkpoint) are removed,
+	// with the sample_stats and profiles parts that carry the names of the sample parts they
+	// accompany (temporary files are not listed parts either). samples/ must exist; the others
+	// only exist in runs that write them.
+	for _, sub := range []string{SamplesDir, StatsDir, ProfilesDir} {
+		dir := filepath.Join(rs.dir, sub)
+		ents, err := os.ReadDir(dir)
+		if err != nil {
+			if sub == SamplesDir {
+				return fmt.Errorf("samples folder: %w", err)
 			}
+			continue
 		}
-	}
-	// The sample_stats and profiles parts carry the names of the sample parts they accompany.
-	for _, sub := range []string{StatsDir, ProfilesDir} {
-		side := filepath.Join(rs.dir, sub) // (temporary files are not listed parts either)
-		if ents, err := os.ReadDir(side); err == nil {
-			for _, e := range ents {
-				if !slices.Contains(cp.Parts, e.Name()) {
-					if err := os.Remove(filepath.Join(side, e.Name())); err != nil {
-						return fmt.Errorf("remove stale %s part: %w", sub, err)
-					}
+		for _, e := range ents {
+			if !slices.Contains(cp.Parts, e.Name()) {
+				rs.log.Info("removing a part written after the last checkpoint", "file", filepath.Join(sub, e.Name()))
+				if err := os.Remove(filepath.Join(dir, e.Name())); err != nil {
+					return fmt.Errorf("remove stale %s part: %w", sub, err)
 				}
 			}
 		}

@@ -339,9 +339,10 @@ func newChain(t Target, cfg Config, pcg *rand.PCG) *Chain {
 			ch.lo, ch.hi = lo, hi
 		}
 	}
-	if sp, ok := t.(Split); ok && int64(cfg.Anneal*float64(cfg.Warmup)) > 0 {
-		ch.split = sp
-		ch.annealEnd = int64(cfg.Anneal * float64(cfg.Warmup))
+	if sp, ok := t.(Split); ok {
+		if end := int64(cfg.Anneal * float64(cfg.Warmup)); end > 0 {
+			ch.split, ch.annealEnd = sp, end
+		}
 	}
 	ch.beta = 1
 	ch.all = make([]int, dc)
@@ -566,9 +567,7 @@ func (ch *Chain) priorSweep(ps PriorSampler) {
 	lp, parts := ch.evaluate(ch.y, ch.yDer)
 	c.IndependenceProposed[phase]++
 	if finite(lp) {
-		copy(ch.st.X, ch.y)
-		ch.st.Derived, ch.yDer = ch.yDer, ch.st.Derived
-		ch.st.LogDensity, ch.st.LogParts = lp, parts
+		ch.accept(lp, parts)
 		c.IndependenceAccepted[phase]++
 	} else {
 		c.Invalid[phase]++
@@ -593,17 +592,20 @@ const (
 	indInflate = 1.5
 )
 
-// fitIndependence fixes the independence proposal from the warm-up moments; it leaves it unset
-// (random walk only) when the moments are too few or the matrix is not positive definite.
-func (ch *Chain) fitIndependence() {
-	dc := len(ch.cont)
-	a := &ch.st.Adapt
-	if a.N < int64(2*dc+10) {
+// fitIndependence fixes the independence proposal from the chain's own warm-up moments.
+func (ch *Chain) fitIndependence() { ch.setIndependence(ch.st.Adapt) }
+
+// setIndependence fits the independence proposal to the moments m (of the joint block); it leaves
+// the proposal as it was (random walk only, if none) when the moments are too few or the matrix is
+// not positive definite.
+func (ch *Chain) setIndependence(m AdaptState) {
+	if m.N < int64(2*len(ch.cont)+10) {
 		return
 	}
-	if m, ok := ch.covCholesky(a, ch.all, indInflate); ok {
-		a.IndMean = append([]float64(nil), a.Mean...)
-		a.IndChol = m
+	if l, ok := ch.covCholesky(&m, ch.all, indInflate); ok {
+		a := &ch.st.Adapt
+		a.IndMean = append([]float64(nil), m.Mean...)
+		a.IndChol = l
 	}
 }
 
@@ -782,12 +784,17 @@ func (ch *Chain) metropolis(phase int, logq float64) bool {
 		return false
 	}
 	if math.Log(u) < lp-ch.st.LogDensity+logq {
-		copy(ch.st.X, ch.y)
-		ch.st.Derived, ch.yDer = ch.yDer, ch.st.Derived
-		ch.st.LogDensity, ch.st.LogParts = lp, parts
+		ch.accept(lp, parts)
 		return true
 	}
 	return false
+}
+
+// accept makes the proposal in ch.y (with its derived values in ch.yDer) the current point.
+func (ch *Chain) accept(lp float64, parts [2]float64) {
+	copy(ch.st.X, ch.y)
+	ch.st.Derived, ch.yDer = ch.yDer, ch.st.Derived
+	ch.st.LogDensity, ch.st.LogParts = lp, parts
 }
 
 // Annealed warm-up. A chain started from the prior can settle in a local mode of the

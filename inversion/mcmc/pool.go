@@ -103,25 +103,16 @@ func poolMoments(as []*AdaptState) (AdaptState, error) {
 	return p, nil
 }
 
-// refit sets the chain's independence proposal from the pooled moments of the joint block. The
-// random-walk proposals keep the chain's own covariance and global scale: the scale was tuned to
-// that covariance, and chains still far apart would give a pooled covariance (dominated by the
-// spread of their means) far too wide for a local move — on the test model of the inversion
-// package, pooling the random walk too dropped its acceptance from 20 % to 0.6 %. The
-// independence proposal is fitted with its own inflation and needs no tuned scale; a poor fit
-// costs only its own acceptance. Too few moments, or a matrix that is not positive definite,
-// leave the chain's own fit.
+// refit sets the chain's independence proposal from the pooled moments of the joint block
+// (setIndependence). The random-walk proposals keep the chain's own covariance and global scale:
+// the scale was tuned to that covariance, and chains still far apart would give a pooled
+// covariance (dominated by the spread of their means) far too wide for a local move — on the
+// test model of the inversion package, pooling the random walk too dropped its acceptance from
+// 20 % to 0.6 %. The independence proposal is fitted with its own inflation and needs no tuned
+// scale; a poor fit costs only its own acceptance.
 func (ch *Chain) refit(joint AdaptState) {
-	d := len(ch.all)
-	if ch.cfg.Independence == 0 || joint.N < int64(2*d+10) {
-		return
-	}
-	own := ch.st.Adapt
-	a := AdaptState{N: joint.N, Mean: joint.Mean, Cov: joint.Cov}
-	if m, ok := ch.covCholesky(&a, ch.all, indInflate); ok {
-		own.IndMean = append([]float64(nil), joint.Mean...)
-		own.IndChol = m
-		ch.st.Adapt = own
+	if ch.cfg.Independence > 0 {
+		ch.setIndependence(joint)
 	}
 }
 
