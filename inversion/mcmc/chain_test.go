@@ -2,6 +2,7 @@ package mcmc
 
 import (
 	"encoding/json"
+	"fmt"
 	"math"
 	"math/rand/v2"
 	"reflect"
@@ -144,9 +145,18 @@ func (m mixed) LogParts(x, d []float64) (float64, float64) {
 	return w, lp - w
 }
 
+// The level probabilities of a discrete coordinate (mixture weights; the marginal of the mixture
+// of unit Gaussians is exactly w) are recovered within 4 MCSE, by the categorical moves and, with
+// independence moves, by the joint independence proposal that replaces them after warm-up.
 func TestDiscreteMarginal(t *testing.T) {
+	for _, ind := range []float64{0, 0.5} {
+		t.Run(fmt.Sprintf("independence %g", ind), func(t *testing.T) { checkDiscreteMarginal(t, ind) })
+	}
+}
+
+func checkDiscreteMarginal(t *testing.T, independence float64) {
 	tg := mixed{w: []float64{0.2, 0.5, 0.3}, m: []float64{0, 0.5, 1}}
-	cfg := Config{Warmup: 2000, Steps: 60000, Thin: 1, InitialScale: []float64{1, 0},
+	cfg := Config{Warmup: 2000, Steps: 60000, Thin: 1, InitialScale: []float64{1, 0}, Independence: independence,
 		Init: func(r *rand.Rand, x []float64) { x[0] = r.NormFloat64(); x[1] = float64(r.IntN(3)) }}
 	draws := runChains(t, tg, cfg, 7, 4)
 	for k, w := range tg.w {
@@ -532,4 +542,27 @@ func TestPoolWarmupPoints(t *testing.T) {
 		t.Fatal(err)
 	}
 	shared("end")
+}
+
+// levelProposal: the warm-up's level frequencies, with a tenth spread uniformly (every level keeps
+// a chance); no counts give the uniform distribution.
+func TestLevelProposal(t *testing.T) {
+	for _, c := range []struct{ counts, want []float64 }{
+		{[]float64{30, 10, 0, 60}, []float64{0.025 + 0.27, 0.025 + 0.09, 0.025, 0.025 + 0.54}},
+		{[]float64{0, 0}, []float64{0.5, 0.5}},
+		{[]float64{5, 0}, []float64{0.95, 0.05}},
+	} {
+		got := levelProposal(c.counts)
+		sum := 0.0
+		for l := range got {
+			sum += got[l]
+			if math.Abs(got[l]-c.want[l]) > 1e-15 {
+				t.Errorf("levelProposal(%v) = %v, want %v", c.counts, got, c.want)
+				break
+			}
+		}
+		if math.Abs(sum-1) > 1e-15 {
+			t.Errorf("levelProposal(%v) sums to %v", c.counts, sum)
+		}
+	}
 }

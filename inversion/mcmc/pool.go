@@ -52,7 +52,7 @@ func PoolWarmup(chains []*Chain) error {
 	for i, ch := range chains {
 		a := ch.st.Adapt
 		if it == w/2 && it != w {
-			a = AdaptState{N: a.PrevN, Mean: a.PrevMean, Cov: a.PrevCov}
+			a = AdaptState{N: a.PrevN, Mean: a.PrevMean, Cov: a.PrevCov, LevelCounts: a.PrevLevelCounts}
 		}
 		adapts[i] = &a
 	}
@@ -63,7 +63,7 @@ func PoolWarmup(chains []*Chain) error {
 	for _, ch := range chains {
 		ch.refit(joint)
 		a := &ch.st.Adapt
-		a.PrevN, a.PrevMean, a.PrevCov = 0, nil, nil
+		a.PrevN, a.PrevMean, a.PrevCov, a.PrevLevelCounts = 0, nil, nil, nil
 	}
 	return nil
 }
@@ -89,6 +89,21 @@ func poolMoments(as []*AdaptState) (AdaptState, error) {
 		w := float64(a.N) / float64(p.N)
 		for k := range d {
 			p.Mean[k] += w * a.Mean[k]
+		}
+	}
+	// Level counts add up.
+	if lc := as[0].LevelCounts; len(lc) > 0 {
+		p.LevelCounts = make([][]float64, len(lc))
+		for j := range lc {
+			p.LevelCounts[j] = make([]float64, len(lc[j]))
+			for _, a := range as {
+				if len(a.LevelCounts) != len(lc) || len(a.LevelCounts[j]) != len(lc[j]) {
+					return p, errors.New("pool warm-up: chains disagree on the discrete coordinates")
+				}
+				for l, v := range a.LevelCounts[j] {
+					p.LevelCounts[j][l] += v
+				}
+			}
 		}
 	}
 	for _, a := range as {
