@@ -526,7 +526,9 @@ func (ch *Chain) sweep() {
 	// The uniform is drawn only when independence moves are on, so that chains without them keep
 	// their random streams. During warm-up they are on only once PoolWarmup has fitted a
 	// provisional proposal half-way through it.
-	joint := !warm && len(ch.disc) > 0 && len(ch.st.Adapt.IndLevels) == len(ch.disc)
+	// joint: the independence move, which then also moves the discrete coordinates, can happen.
+	joint := !warm && len(ch.cont) > 0 && ch.cfg.Independence > 0 && len(ch.disc) > 0 &&
+		len(ch.st.Adapt.IndLevels) == len(ch.disc) && len(ch.st.Adapt.IndChol) == len(ch.cont)*len(ch.cont)
 	if dc := len(ch.cont); dc > 0 && ch.cfg.Independence > 0 && len(ch.st.Adapt.IndChol) == dc*dc &&
 		ch.rng.Float64() < ch.cfg.Independence {
 		c.IndependenceProposed[phase]++
