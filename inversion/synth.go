@@ -2,8 +2,6 @@ package inversion
 
 import (
 	"bytes"
-	"crypto/sha256"
-	"encoding/binary"
 	"fmt"
 	"math/rand/v2"
 	"path/filepath"
@@ -13,6 +11,8 @@ import (
 	"unicode/utf8"
 
 	"go.yaml.in/yaml/v3"
+
+	"plumb/inversion/mcmc"
 )
 
 // SynthRand returns the generator of the synthetic noise for seed. The PCG is seeded with a
@@ -20,11 +20,7 @@ import (
 // config's sampler.seed: a generator seeded like a chain's would make the data's noise and that
 // chain's moves come from related streams.
 func SynthRand(seed uint64) *rand.Rand {
-	var b [16 + 8]byte
-	copy(b[:16], "plumb/synth-seed")
-	binary.LittleEndian.PutUint64(b[16:], seed)
-	h := sha256.Sum256(b[:])
-	return rand.New(rand.NewPCG(binary.LittleEndian.Uint64(h[:8]), binary.LittleEndian.Uint64(h[8:16])))
+	return rand.New(rand.NewPCG(mcmc.HashSeeds("plumb/synth-seed", seed)))
 }
 
 // AddNoise returns pred (SI, in the order of p.Observations) plus Gaussian noise N(0, σ²) with

@@ -229,11 +229,19 @@ type Chain struct {
 // increment, so NewPCG(seed, c) would give chains offsets in one stream; hashing (seed, c) gives
 // unrelated streams.
 func Seeds(seed uint64, c int) (uint64, uint64) {
-	var b [8 + 8 + 16]byte
-	copy(b[:16], "plumb/chain-seed")
-	binary.LittleEndian.PutUint64(b[16:], seed)
-	binary.LittleEndian.PutUint64(b[24:], uint64(c))
-	h := sha256.Sum256(b[:])
+	return HashSeeds("plumb/chain-seed", seed, uint64(c))
+}
+
+// HashSeeds derives two PCG seed words from a tag and some words: the first 16 bytes of the
+// SHA-256 of the tag's bytes followed by each word in little-endian order. Distinct tags keep the
+// streams of chains, replicas, exchanges and synthetic noise unrelated even from one seed.
+func HashSeeds(tag string, words ...uint64) (uint64, uint64) {
+	b := make([]byte, len(tag), len(tag)+8*len(words))
+	copy(b, tag)
+	for _, w := range words {
+		b = binary.LittleEndian.AppendUint64(b, w)
+	}
+	h := sha256.Sum256(b)
 	return binary.LittleEndian.Uint64(h[:8]), binary.LittleEndian.Uint64(h[8:16])
 }
 

@@ -32,8 +32,6 @@ package mcmc
 //     outside the support everywhere (counted as an invalid proposal, as in Chain).
 //   - Tempered calls only LogParts, never the target's LogDensity.
 import (
-	"crypto/sha256"
-	"encoding/binary"
 	"fmt"
 	"math"
 	"math/rand/v2"
@@ -179,27 +177,17 @@ type Tempered struct {
 	rng   *rand.Rand
 	st    TemperedState // Replicas and RNG are kept in reps and pcg
 	acc   []float64     // exchange acceptance probabilities of the last round, per pair
+	prior PriorSampler  // the target as a PriorSampler (moves the β = 0 replica), or nil
 }
 
 // replicaSeeds derives the PCG seed words of replica k from the chain's seed words.
 func replicaSeeds(s1, s2 uint64, k int) (uint64, uint64) {
-	var b [18 + 24]byte
-	copy(b[:18], "plumb/replica-seed")
-	binary.LittleEndian.PutUint64(b[18:], s1)
-	binary.LittleEndian.PutUint64(b[26:], s2)
-	binary.LittleEndian.PutUint64(b[34:], uint64(k))
-	h := sha256.Sum256(b[:])
-	return binary.LittleEndian.Uint64(h[:8]), binary.LittleEndian.Uint64(h[8:16])
+	return HashSeeds("plumb/replica-seed", s1, s2, uint64(k))
 }
 
 // swapSeeds derives the PCG seed words of the exchange stream from the chain's seed words.
 func swapSeeds(s1, s2 uint64) (uint64, uint64) {
-	var b [15 + 16]byte
-	copy(b[:15], "plumb/swap-seed")
-	binary.LittleEndian.PutUint64(b[15:], s1)
-	binary.LittleEndian.PutUint64(b[23:], s2)
-	h := sha256.Sum256(b[:])
-	return binary.LittleEndian.Uint64(h[:8]), binary.LittleEndian.Uint64(h[8:16])
+	return HashSeeds("plumb/swap-seed", s1, s2)
 }
 
 // initialLadder returns the geometric ladder β_k = βmin^(k/(K−2)) for k = 1..K−2 with β₀ = 1,
@@ -258,7 +246,8 @@ func NewTempered(t Split, cfg Config, tc TemperConfig, seed uint64, c int) (*Tem
 }
 
 func newTempered(t Split, cfg Config, tc TemperConfig) *Tempered {
-	return &Tempered{t: t, cfg: cfg, tc: tc, n: t.NumDerived(), acc: make([]float64, tc.Replicas-1)}
+	prior, _ := t.(PriorSampler)
+	return &Tempered{t: t, cfg: cfg, tc: tc, n: t.NumDerived(), acc: make([]float64, tc.Replicas-1), prior: prior}
 }
 
 // RestoreTempered rebuilds a tempered chain from a saved state; the target and both configs must
@@ -390,10 +379,9 @@ func (tp *Tempered) sweep() {
 	if warm {
 		phase = 0
 	}
-	prior, _ := tp.t.(PriorSampler)
 	for k, ch := range tp.reps {
-		if k == len(tp.reps)-1 && prior != nil && tp.st.Betas[k] == 0 {
-			ch.priorSweep(prior)
+		if k == len(tp.reps)-1 && tp.prior != nil && tp.st.Betas[k] == 0 {
+			ch.priorSweep(tp.prior)
 		} else {
 			ch.sweep()
 		}
