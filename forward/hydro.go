@@ -32,38 +32,22 @@ type EOSModel struct {
 
 // Radius returns the outer radius of the model (m), or 0 for a model without
 // layers.
-func (m EOSModel) Radius() float64 {
-	if len(m.Layers) == 0 {
-		return 0
-	}
-	return m.Layers[len(m.Layers)-1].Outer
-}
+func (m EOSModel) Radius() float64 { return outerRadius(m.Layers) }
 
 // Validate checks the geometry as Model.Validate does (at least one layer,
-// contiguous from r = 0, Inner < Outer, finite radii), that every layer has an
-// EOS with a finite positive reference density, and that viscosities are
-// finite and ≥ 0. The error names the offending layer by index and name.
-func (m EOSModel) Validate() error {
-	if len(m.Layers) == 0 {
-		return fmt.Errorf("model has no layers")
-	}
-	for i := range m.Layers {
-		if err := m.validateLayer(i); err != nil {
-			return fmt.Errorf("layer %d (%q): %w", i, m.Layers[i].Name, err)
-		}
-	}
-	return nil
+// contiguous from r = 0, Inner < Outer, finite radii), that every layer has
+// either a prescribed Density, finite and > 0 on the layer, with a prescribed
+// Vp, or an EOS with a finite positive reference density, and that
+// viscosities are finite and ≥ 0. The error names the offending layer by
+// index and name.
+func (m EOSModel) Validate() error { return validateLayers(m.Layers) }
+
+// geometry and checkMaterial make *EOSLayer a shellLayer.
+func (l *EOSLayer) geometry() (name string, inner, outer, viscosity float64) {
+	return l.Name, l.Inner, l.Outer, l.Viscosity
 }
 
-func (m EOSModel) validateLayer(i int) error {
-	l := &m.Layers[i]
-	below := 0.0
-	if i > 0 {
-		below = m.Layers[i-1].Outer
-	}
-	if err := checkShell(i, l.Inner, l.Outer, below, l.Viscosity); err != nil {
-		return err
-	}
+func (l *EOSLayer) checkMaterial() error {
 	if l.Density != nil {
 		if l.Vp == nil {
 			return fmt.Errorf("a prescribed density needs prescribed velocities (Vp)")
@@ -105,9 +89,10 @@ const (
 	PieceDegree = 4
 	// DefaultNodesPerLayer is the default SolveOptions.NodesPerLayer: two
 	// quartic pieces per layer. With it the moment of inertia factor of an
-	// Earth-like four-layer BM3/Vinet model changes by ~1e-10 when the number
-	// of nodes doubles (TestHydrostaticGridConvergence); more compressed
-	// planets need more nodes for the same accuracy (TestHydrostaticSuperEarth).
+	// Earth-like four-layer BM3/Vinet model changes by less than 1e-7 when the
+	// number of pieces doubles (TestHydrostaticGridConvergence); more
+	// compressed planets need more nodes for the same accuracy
+	// (TestHydrostaticSuperEarth).
 	DefaultNodesPerLayer = 2*PieceDegree + 1
 	// DefaultTol is the default SolveOptions.Tol.
 	DefaultTol = 1e-9
@@ -167,8 +152,8 @@ func (o SolveOptions) withDefaults() (SolveOptions, error) {
 // P ↦ P_hydro(EOS⁻¹(P)) on the nodal pressures is iterated with Anderson
 // mixing of depth andersonDepth (Anderson 1965, J. ACM 12, 547; in the form of
 // Walker & Ni 2011, SIAM J. Numer. Anal. 49, 1715, both from memory), which
-// needs a handful of iterations where the plain fixed point needs tens. A
-// mixed iterate with a negative pressure, or one the EOS rejects, is replaced
+// converges in far fewer iterations than the plain fixed point. A mixed
+// iterate with a negative pressure, or one the EOS rejects, is replaced
 // by the plain fixed-point step and the history cleared. It stops when
 // max |P_hydro − P|/P_c < Tol over the nodes, and gives up after MaxIter
 // iterations or when the residual has not halved in stallIters iterations.
@@ -229,12 +214,11 @@ type piece struct {
 
 // maxGrowth bounds growthFactor for the degree chosen in a layer. Rounding
 // noise in the nodal densities, amplified by growthFactor in the monomial
-// coefficients, feeds back through the pressure integrals: with quartic
-// pieces the iteration was seen to blow up from growthFactor ≈ 1e17 on (thin
-// surface layers), and to stall at max |ΔP|/P_c ≈ 5e-9, above the default
-// Tol, from ≈ 3e10 on in a 14-Earth-mass planet. 1e9 stays clear of both
-// (common practice, no source; see TestHydrostaticThinLayers and
-// TestHydrostaticSuperEarth).
+// coefficients, feeds back through the pressure integrals: too large a
+// growthFactor makes the iteration blow up (thin surface layers) or stall at
+// a rounding floor of max |ΔP|/P_c above the default Tol (strongly
+// compressed planets). The bound keeps clear of both (common practice, no
+// source; TestHydrostaticThinLayers and TestHydrostaticSuperEarth check it).
 const maxGrowth = 1e9
 
 // growthFactor estimates by how much the monomial coefficients (in r/R) of the

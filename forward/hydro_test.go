@@ -313,10 +313,10 @@ func TestHydrostaticAdamsWilliamson(t *testing.T) {
 }
 
 // Grid convergence: the moment of inertia factor changes by less than 1e-7
-// when the number of pieces per layer doubles from the default (requirement
-// of the issue); the self-consistency at return is checked at every node,
-// |P_EOS(ρ(r_node)) − P(r_node)|/P_c < Tol (1e-9), with P the returned
-// structure's hydrostatic pressure.
+// when the number of pieces per layer doubles from the default (an accuracy
+// target; common practice, no source); the self-consistency at return is
+// checked at every node, |P_EOS(ρ(r_node)) − P(r_node)|/P_c < Tol (1e-9),
+// with P the returned structure's hydrostatic pressure.
 func TestHydrostaticGridConvergence(t *testing.T) {
 	m := earthLike(t, 0.9)
 	eosOf := map[string]eos.EOS{}

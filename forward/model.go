@@ -24,12 +24,7 @@ type Model struct {
 
 // Radius returns the outer radius of the model (m), or 0 for a model without
 // layers.
-func (m Model) Radius() float64 {
-	if len(m.Layers) == 0 {
-		return 0
-	}
-	return m.Layers[len(m.Layers)-1].Outer
-}
+func (m Model) Radius() float64 { return outerRadius(m.Layers) }
 
 // Validate checks that the model is physically usable: at least one layer;
 // layers contiguous from r = 0 with Inner < Outer; all numbers finite;
@@ -37,27 +32,27 @@ func (m Model) Radius() float64 {
 // and vs ≥ 0 in solid layers (the extrema of each polynomial on
 // [Inner, Outer] are checked, not only its end values); viscosity ≥ 0.
 // The error names the offending layer by index and name.
-func (m Model) Validate() error {
-	if len(m.Layers) == 0 {
-		return fmt.Errorf("model has no layers")
-	}
-	for i := range m.Layers {
-		if err := m.validateLayer(i); err != nil {
-			return fmt.Errorf("layer %d (%q): %w", i, m.Layers[i].Name, err)
-		}
-	}
-	return nil
+func (m Model) Validate() error { return validateLayers(m.Layers) }
+
+// shellLayer is a pointer to a layer of a Model or an EOSModel (L is Layer
+// or EOSLayer): a named shell Inner ≤ r ≤ Outer with a viscosity and a
+// material. Both models get their radius and validation from outerRadius and
+// validateLayers through it.
+type shellLayer[L Layer | EOSLayer] interface {
+	*L
+	// geometry returns the layer's name, radii (m) and viscosity (Pa·s).
+	geometry() (name string, inner, outer, viscosity float64)
+	// checkMaterial checks the layer's material on [Inner, Outer]; the
+	// geometry has been checked already.
+	checkMaterial() error
 }
 
-func (m Model) validateLayer(i int) error {
-	l := &m.Layers[i]
-	below := 0.0
-	if i > 0 {
-		below = m.Layers[i-1].Outer
-	}
-	if err := checkShell(i, l.Inner, l.Outer, below, l.Viscosity); err != nil {
-		return err
-	}
+// geometry and checkMaterial make *Layer a shellLayer.
+func (l *Layer) geometry() (name string, inner, outer, viscosity float64) {
+	return l.Name, l.Inner, l.Outer, l.Viscosity
+}
+
+func (l *Layer) checkMaterial() error {
 	if err := checkPoly(l.Density, l.Inner, l.Outer, "density", "kg/m³", false); err != nil {
 		return err
 	}
@@ -68,6 +63,40 @@ func (m Model) validateLayer(i int) error {
 		if err := checkPoly(l.Vs, l.Inner, l.Outer, "vs", "m/s", true); err != nil {
 			return err
 		}
+	}
+	return nil
+}
+
+// outerRadius returns the outer radius of the last of layers (m), or 0 if
+// there are none.
+func outerRadius[L Layer | EOSLayer, P shellLayer[L]](layers []L) float64 {
+	if len(layers) == 0 {
+		return 0
+	}
+	_, _, outer, _ := P(&layers[len(layers)-1]).geometry()
+	return outer
+}
+
+// validateLayers checks that there is at least one layer and then, for each
+// layer from the centre out, its geometry and viscosity (checkShell) and its
+// material (checkMaterial). The error names the offending layer by index and
+// name.
+func validateLayers[L Layer | EOSLayer, P shellLayer[L]](layers []L) error {
+	if len(layers) == 0 {
+		return fmt.Errorf("model has no layers")
+	}
+	below := 0.0
+	for i := range layers {
+		l := P(&layers[i])
+		name, inner, outer, viscosity := l.geometry()
+		err := checkShell(i, inner, outer, below, viscosity)
+		if err == nil {
+			err = l.checkMaterial()
+		}
+		if err != nil {
+			return fmt.Errorf("layer %d (%q): %w", i, name, err)
+		}
+		below = outer
 	}
 	return nil
 }
@@ -103,7 +132,7 @@ func checkPoly(p Poly, lo, hi float64, what, unit string, zeroOK bool) error {
 func finite(v float64) bool { return !math.IsNaN(v) && !math.IsInf(v, 0) }
 
 // checkShell checks the geometry of layer i, Inner ≤ r ≤ Outer, whose layer below ends at below
-// (ignored for i = 0), and its viscosity: shared by Model and EOSModel.
+// (ignored for i = 0), and its viscosity.
 func checkShell(i int, inner, outer, below, viscosity float64) error {
 	if !finite(inner) || !finite(outer) {
 		return fmt.Errorf("radii must be finite, got inner %g m, outer %g m", inner, outer)

@@ -110,21 +110,17 @@ func (sh *shell) set(p Poly, R, ra, rb float64) {
 }
 
 // mass returns ∫ ρ x² dx over the shell (normalised mass increment).
-func (sh *shell) mass() float64 {
-	a, _, q := sh.slices()
-	t := 0.0
-	for k, ak := range a {
-		t += ak * q[k+3]
-	}
-	return sh.d * t
-}
+func (sh *shell) mass() float64 { return sh.moment(3) }
 
 // inertia returns ∫ ρ x⁴ dx over the shell.
-func (sh *shell) inertia() float64 {
+func (sh *shell) inertia() float64 { return sh.moment(5) }
+
+// moment returns ∫ ρ x^{j−1} dx = d·Σ_k a_k q[k+j] over the shell (j ≥ 1).
+func (sh *shell) moment(j int) float64 {
 	a, _, q := sh.slices()
 	t := 0.0
 	for k, ak := range a {
-		t += ak * q[k+5]
+		t += ak * q[k+j]
 	}
 	return sh.d * t
 }
@@ -385,15 +381,7 @@ func (s *Structure) Profile(n int) Profile {
 	for i := range s.Model.Layers {
 		l := &s.Model.Layers[i]
 		for k := range n {
-			r := nodeRadius(l.Inner, l.Outer, k, n)
-			p.Radius[idx] = r
-			p.Density[idx] = l.Density.At(r)
-			p.Vp[idx] = l.Vp.At(r)
-			if !l.Fluid {
-				p.Vs[idx] = l.Vs.At(r)
-			}
-			p.Gravity[idx] = s.gravityIn(i, r)
-			p.Pressure[idx] = s.pressureIn(i, r)
+			s.sample(&p, idx, i, nodeRadius(l.Inner, l.Outer, k, n))
 			idx++
 		}
 	}
@@ -408,18 +396,23 @@ func (s *Structure) ProfileAt(radii []float64) Profile {
 	total := len(radii)
 	p := newProfile(total)
 	for k, r := range radii {
-		i := s.LayerAt(r, false)
-		l := &s.Model.Layers[i]
-		p.Radius[k] = r
-		p.Density[k] = l.Density.At(r)
-		p.Vp[k] = l.Vp.At(r)
-		if !l.Fluid {
-			p.Vs[k] = l.Vs.At(r)
-		}
-		p.Gravity[k] = s.gravityIn(i, r)
-		p.Pressure[k] = s.pressureIn(i, r)
+		s.sample(&p, k, s.LayerAt(r, false), r)
 	}
 	return p
+}
+
+// sample sets node k of p to the structure at radius r, evaluated in layer i
+// (Vs stays 0 in a fluid layer).
+func (s *Structure) sample(p *Profile, k, i int, r float64) {
+	l := &s.Model.Layers[i]
+	p.Radius[k] = r
+	p.Density[k] = l.Density.At(r)
+	p.Vp[k] = l.Vp.At(r)
+	if !l.Fluid {
+		p.Vs[k] = l.Vs.At(r)
+	}
+	p.Gravity[k] = s.gravityIn(i, r)
+	p.Pressure[k] = s.pressureIn(i, r)
 }
 
 // RadiusGrid returns the radii 0, step, 2·step, … below radius, then radius itself (m): the

@@ -152,3 +152,14 @@ func checkClose(t *testing.T, what string, got, want, tol, scale float64) {
 		t.Errorf("%s = %.17g, want %.17g (tol %g × %g)", what, got, want, tol, math.Max(math.Abs(want), scale))
 	}
 }
+
+// mustDist unwraps a constructor result in test tables.
+func mustDist[D Dist](d D, err error) D {
+	if err != nil {
+		panic(err)
+	}
+	return d
+}
+
+// errOf keeps the error of a constructor result.
+func errOf[D any](_ D, err error) error { return err }

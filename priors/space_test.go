@@ -190,23 +190,3 @@ func BenchmarkSample(b *testing.B) {
 		s.Sample(r, x)
 	}
 }
-
-// BenchmarkTruncNormalQuantile measures the inverse CDF on the wide and the
-// narrow path.
-func BenchmarkTruncNormalQuantile(b *testing.B) {
-	for _, d := range []TruncNormal{
-		mustDist(NewTruncNormal(0, 1, 6, math.Inf(1))),
-		mustDist(NewTruncNormal(0, 1, 0.5, 0.9)),
-	} {
-		b.Run(d.String(), func(b *testing.B) {
-			p := 0.0
-			for b.Loop() {
-				p += 1e-6
-				if p >= 1 {
-					p = 1e-6
-				}
-				d.Quantile(p)
-			}
-		})
-	}
-}

@@ -3,6 +3,7 @@ package main
 import (
 	"bytes"
 	"encoding/json"
+	"errors"
 	"fmt"
 	"io"
 	"log/slog"
@@ -17,15 +18,18 @@ import (
 
 	"plumb/forward"
 	"plumb/forward/tides"
-	"plumb/inversion"
 	"plumb/inversion/modelfile"
+	"plumb/inversion/problem"
+	"plumb/inversion/results"
+	"plumb/inversion/run"
+	"plumb/inversion/runfolder"
 	"plumb/inversion/store"
 )
 
 // runOptions builds the execution options: a live line when stderr is a terminal, else log lines.
-func runOptions(cmd *cobra.Command, workers int) inversion.Options {
+func runOptions(cmd *cobra.Command, workers int) run.Options {
 	errw := cmd.ErrOrStderr()
-	opt := inversion.Options{Workers: workers, Log: slog.New(slog.NewTextHandler(errw, nil))}
+	opt := run.Options{Workers: workers, Log: slog.New(slog.NewTextHandler(errw, nil))}
 	if f, ok := errw.(*os.File); ok && term.IsTerminal(int(f.Fd())) {
 		opt.Live = errw
 	}
@@ -65,7 +69,7 @@ func runCmd() *cobra.Command {
 			if f.Changed("workers") {
 				ov["sampler.workers"] = workers
 			}
-			cfg, err := inversion.Load(args[0], ov)
+			cfg, err := problem.Load(args[0], configOverrides(ov))
 			if err != nil {
 				return err
 			}
@@ -76,13 +80,14 @@ func runCmd() *cobra.Command {
 					dir = filepath.Join(filepath.Dir(args[0]), dir)
 				}
 			}
-			if err := inversion.Start(cmd.Context(), cfg, args[0], dir, runOptions(cmd, 0)); err != nil {
-				if err == inversion.ErrInterrupted {
+			rf, err := run.Start(cmd.Context(), cfg, args[0], dir, runOptions(cmd, 0))
+			if err != nil {
+				if errors.Is(err, run.ErrInterrupted) {
 					fmt.Fprintf(cmd.ErrOrStderr(), "checkpoint written; continue with: plumb resume %s\n", dir)
 				}
 				return err
 			}
-			return writeSummary(cmd.OutOrStdout(), dir, false)
+			return writeSummary(cmd.OutOrStdout(), rf, false)
 		},
 	}
 	f := c.Flags()
@@ -96,12 +101,13 @@ func runCmd() *cobra.Command {
 	return c
 }
 
-// requireRunDir is an input error unless dir holds a run's resolved config.
-func requireRunDir(dir string) error {
-	if _, err := os.Stat(filepath.Join(dir, inversion.ConfigFile)); err != nil {
-		return inputError{fmt.Errorf("%s: not a run folder (no %s)", dir, inversion.ConfigFile)}
+// openRunDir opens a run folder; a folder that is not one is an input error.
+func openRunDir(dir string) (*runfolder.Folder, error) {
+	f, err := runfolder.Open(dir)
+	if errors.Is(err, runfolder.ErrNotRunFolder) {
+		return nil, inputError{err}
 	}
-	return nil
+	return f, err
 }
 
 func resumeCmd() *cobra.Command {
@@ -111,13 +117,21 @@ func resumeCmd() *cobra.Command {
 		Short: "Continue an interrupted run exactly where it stopped",
 		Args:  cobra.ExactArgs(1),
 		RunE: func(cmd *cobra.Command, args []string) error {
-			if err := requireRunDir(args[0]); err != nil {
+			dir := args[0]
+			f, err := openRunDir(dir)
+			if err != nil {
 				return err
 			}
-			if err := inversion.Resume(cmd.Context(), args[0], runOptions(cmd, workers)); err != nil {
+			// A run resumes with its own config: overrides in the environment are not applied
+			// (they would change the config's hash and so refuse the resume).
+			if _, names := envOverrides(os.LookupEnv); len(names) > 0 {
+				fmt.Fprintf(cmd.ErrOrStderr(), "plumb: ignoring %s: a run resumes with its own config (%s)\n",
+					strings.Join(names, ", "), filepath.Join(dir, runfolder.ConfigFile))
+			}
+			if f, err = run.Resume(cmd.Context(), f, runOptions(cmd, workers)); err != nil {
 				return err
 			}
-			return writeSummary(cmd.OutOrStdout(), args[0], false)
+			return writeSummary(cmd.OutOrStdout(), f, false)
 		},
 	}
 	c.Flags().IntVar(&workers, "workers", 0, "goroutines running chains (default: the run's config); does not change the output")
@@ -133,17 +147,18 @@ func summaryCmd() *cobra.Command {
 		Args:  cobra.ExactArgs(1),
 		RunE: func(cmd *cobra.Command, args []string) error {
 			dir := args[0]
-			if err := requireRunDir(dir); err != nil {
+			f, err := openRunDir(dir)
+			if err != nil {
 				return err
 			}
 			w := cmd.OutOrStdout()
 			if asJSON && truth != "" {
 				// One JSON document: {"summary": …, "truth": …}.
 				var sb, tb bytes.Buffer
-				if err := writeSummary(&sb, dir, true); err != nil {
+				if err := writeSummary(&sb, f, true); err != nil {
 					return err
 				}
-				if err := summaryTruth(&tb, dir, truth, true); err != nil {
+				if err := summaryTruth(&tb, f, truth, true); err != nil {
 					return err
 				}
 				_, err := fmt.Fprintf(w, "{\"summary\": %s,\n\"truth\": %s}\n", bytes.TrimSpace(sb.Bytes()), bytes.TrimSpace(tb.Bytes()))
@@ -151,17 +166,17 @@ func summaryCmd() *cobra.Command {
 					return err
 				}
 			} else {
-				if err := writeSummary(w, dir, asJSON); err != nil {
+				if err := writeSummary(w, f, asJSON); err != nil {
 					return err
 				}
 				if truth != "" {
-					if err := summaryTruth(w, dir, truth, false); err != nil {
+					if err := summaryTruth(w, f, truth, false); err != nil {
 						return err
 					}
 				}
 			}
 			if markdown != "" {
-				return summaryMarkdown(cmd, dir, markdown)
+				return summaryMarkdown(cmd, f, markdown)
 			}
 			return nil
 		},
@@ -172,9 +187,10 @@ func summaryCmd() *cobra.Command {
 	return c
 }
 
-// writeSummary summarises a run, saves summary.json in it and prints the tables (or JSON).
-func writeSummary(w io.Writer, dir string, asJSON bool) error {
-	s, err := inversion.Summarize(dir)
+// writeSummary summarises an opened run folder, saves summary.json in it and prints the tables
+// (or JSON).
+func writeSummary(w io.Writer, f *runfolder.Folder, asJSON bool) error {
+	s, err := results.Summarize(f)
 	if err != nil {
 		return err
 	}
@@ -182,7 +198,7 @@ func writeSummary(w io.Writer, dir string, asJSON bool) error {
 	if err != nil {
 		return err
 	}
-	if err := store.WriteFileAtomic(filepath.Join(dir, inversion.SummaryFile), b, 0o644); err != nil {
+	if err := store.WriteFileAtomic(filepath.Join(f.Dir, runfolder.SummaryFile), b, 0o644); err != nil {
 		return fmt.Errorf("write summary: %w", err)
 	}
 	if asJSON {
@@ -198,11 +214,11 @@ func checkCmd() *cobra.Command {
 		Short: "Validate a config and print its parameters and observations without sampling",
 		Args:  cobra.ExactArgs(1),
 		RunE: func(cmd *cobra.Command, args []string) error {
-			cfg, err := inversion.Load(args[0], nil)
+			cfg, err := problem.Load(args[0], configOverrides(nil))
 			if err != nil {
 				return err
 			}
-			p, err := inversion.Build(cfg, args[0])
+			p, err := problem.Build(cfg, args[0])
 			if err != nil {
 				return err
 			}
@@ -327,17 +343,16 @@ func forwardCmd() *cobra.Command {
 			if model == "" {
 				return usageError{fmt.Errorf("forward: --model FILE is required")}
 			}
-			st, err := solveModelFile(model)
+			st, rheologies, err := solveModelFile(model)
 			if err != nil {
 				return err
 			}
-			r := forwardResult{
-				RadiusKm: st.Radius() / 1e3, MassKg: st.Mass, MeanDensityKgM3: st.MeanDensity(),
-				SurfaceGravityMS2: st.SurfaceGravity(), MoIFactor: st.MoIFactor(),
-				CentralPressurePa: st.CentralPressure(), Layers: len(st.Model.Layers),
+			r, err := newForwardResult(st)
+			if err != nil {
+				return fmt.Errorf("%s: %w", model, err)
 			}
 			if degree > 0 {
-				lv, err := loveNumbers(st, degree, periodH)
+				lv, err := loveNumbers(st, degree, periodH, rheologies)
 				if err != nil {
 					return inputError{fmt.Errorf("%s: Love numbers: %w", model, err)}
 				}
@@ -422,11 +437,36 @@ func forwardCmd() *cobra.Command {
 	return c
 }
 
+// newForwardResult fills the bulk quantities from the observable registry (the code an inversion
+// predicts them with) and the central pressure.
+func newForwardResult(st *forward.Structure) (forwardResult, error) {
+	r := forwardResult{CentralPressurePa: st.CentralPressure(), Layers: len(st.Model.Layers)}
+	vals, err := problem.StructureValues(st)
+	if err != nil {
+		return r, err
+	}
+	for _, v := range vals {
+		switch v.Key {
+		case "radius_km":
+			r.RadiusKm = v.Output
+		case "mass_kg":
+			r.MassKg = v.Output
+		case "mean_density_kg_m3":
+			r.MeanDensityKgM3 = v.Output
+		case "surface_gravity_m_s2":
+			r.SurfaceGravityMS2 = v.Output
+		case "moi_factor":
+			r.MoIFactor = v.Output
+		}
+	}
+	return r, nil
+}
+
 // loveNumbers computes the static elastic Love numbers of degree n and, for periodH > 0, the
-// complex k at that period with a Maxwell rheology in every layer that has a viscosity (a model
-// file's rheology keys are used by inversions; forward keeps to the one rheology a tabulated
-// model can express).
-func loveNumbers(st *forward.Structure, n int, periodH float64) (*loveJSON, error) {
+// complex k at that period with the model's tidal rheologies (rheologies gives them: a layered
+// model's rheology keys, or for a tabulated model the default rheology of every layer with a
+// viscosity).
+func loveNumbers(st *forward.Structure, n int, periodH float64, rheologies func() ([]tides.Rheology, error)) (*loveJSON, error) {
 	k, h, l, err := tides.Love(st, n)
 	if err != nil {
 		return nil, err
@@ -441,11 +481,9 @@ func loveNumbers(st *forward.Structure, n int, periodH float64) (*loveJSON, erro
 	if !(periodH > 0) {
 		return nil, fmt.Errorf("--period-h %g is not a positive period", periodH)
 	}
-	rh := make([]tides.Rheology, len(st.Model.Layers))
-	for i, ly := range st.Model.Layers {
-		if ly.Viscosity > 0 {
-			rh[i] = tides.Rheology{Kind: tides.Maxwell, Viscosity: ly.Viscosity}
-		}
+	rh, err := rheologies()
+	if err != nil {
+		return nil, err
 	}
 	kc, _, _, err := tides.ComplexLove(st, n, periodH*3600, rh)
 	if err != nil {
@@ -460,29 +498,29 @@ func loveNumbers(st *forward.Structure, n int, periodH float64) (*loveJSON, erro
 }
 
 // solveModelFile reads a tabulated CSV model or a layered YAML/TOML model (the planet and layers
-// sections of a config, all values fixed) and solves its structure.
-func solveModelFile(path string) (*forward.Structure, error) {
+// sections of a config, all values fixed) and solves its structure; rheologies gives the tidal
+// rheology of its layers.
+func solveModelFile(path string) (st *forward.Structure, rheologies func() ([]tides.Rheology, error), err error) {
 	switch strings.ToLower(filepath.Ext(path)) {
 	case ".yaml", ".yml", ".toml":
-		p, err := inversion.LoadModel(path)
+		p, err := problem.LoadModel(path)
 		if err != nil {
-			return nil, err
+			return nil, nil, err
 		}
 		st, err := p.Solve(nil)
 		if err != nil {
-			return nil, inputError{fmt.Errorf("%s: not a physical model: %w", path, err)}
+			return nil, nil, inputError{fmt.Errorf("%s: not a physical model: %w", path, err)}
 		}
-		return st, nil
+		return st, func() ([]tides.Rheology, error) { return p.Rheologies(st, nil) }, nil
 	}
 	m, err := modelfile.ReadCSVFile(path)
 	if err != nil {
-		return nil, inputError{err}
+		return nil, nil, inputError{err}
 	}
-	st, err := forward.Solve(m)
-	if err != nil {
-		return nil, inputError{fmt.Errorf("%s: %w", path, err)}
+	if st, err = forward.Solve(m); err != nil {
+		return nil, nil, inputError{fmt.Errorf("%s: %w", path, err)}
 	}
-	return st, nil
+	return st, func() ([]tides.Rheology, error) { return problem.TableRheologies(st), nil }, nil
 }
 
 // writeProfile writes a profile CSV atomically, refusing to overwrite an existing file.

@@ -23,7 +23,7 @@ func TestMain(m *testing.M) {
 	if os.Getenv("PLUMB_TEST_AS_MAIN") != "" {
 		args := strings.Split(os.Getenv("PLUMB_TEST_AS_MAIN"), "\x1f")
 		ctx, cancel := signal.NotifyContext(context.Background(), os.Interrupt, syscall.SIGTERM)
-		code := run(ctx, args, os.Stdout, os.Stderr)
+		code := runCLI(ctx, args, os.Stdout, os.Stderr)
 		cancel()
 		os.Exit(code)
 	}

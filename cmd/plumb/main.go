@@ -20,12 +20,13 @@ import (
 	"io"
 	"os"
 	"os/signal"
+	"plumb/inversion/problem"
+	"plumb/inversion/run"
+	"plumb/inversion/runfolder"
 	"strings"
 	"syscall"
 
 	"github.com/spf13/cobra"
-
-	"plumb/inversion"
 )
 
 // Exit statuses.
@@ -38,7 +39,7 @@ const (
 
 func main() {
 	ctx, cancel := signal.NotifyContext(context.Background(), os.Interrupt, syscall.SIGTERM)
-	code := run(ctx, os.Args[1:], os.Stdout, os.Stderr)
+	code := runCLI(ctx, os.Args[1:], os.Stdout, os.Stderr)
 	cancel()
 	os.Exit(code)
 }
@@ -49,8 +50,8 @@ type inputError struct{ err error }
 func (e inputError) Error() string { return e.err.Error() }
 func (e inputError) Unwrap() error { return e.err }
 
-// run executes the CLI with args and returns the exit status; it never panics on bad input.
-func run(ctx context.Context, args []string, stdout, stderr io.Writer) int {
+// runCLI executes the CLI with args and returns the exit status; it never panics on bad input.
+func runCLI(ctx context.Context, args []string, stdout, stderr io.Writer) int {
 	root := newRoot(ctx, stdout, stderr)
 	root.SetArgs(args)
 	err := root.Execute()
@@ -59,12 +60,12 @@ func run(ctx context.Context, args []string, stdout, stderr io.Writer) int {
 	}
 	msg := strings.Join(strings.Fields(err.Error()), " ")
 	fmt.Fprintf(stderr, "plumb: %s\n", msg)
-	var ce *inversion.ConfigError
+	var ce *problem.ConfigError
 	var ie inputError
 	switch {
-	case errors.Is(err, inversion.ErrInterrupted):
+	case errors.Is(err, run.ErrInterrupted):
 		return exitInterrupted
-	case errors.As(err, &ce), errors.As(err, &ie), errors.Is(err, inversion.ErrRunDirNotEmpty), isUsage(err):
+	case errors.As(err, &ce), errors.As(err, &ie), errors.Is(err, run.ErrRunDirNotEmpty), isUsage(err):
 		return exitBadInput
 	}
 	return exitFailure
@@ -86,10 +87,10 @@ func newRoot(ctx context.Context, stdout, stderr io.Writer) *cobra.Command {
 		Short: "Bayesian inference of planetary interior structure",
 		Long: "plumb samples layered interior models of a rocky planet or moon with Markov chain Monte Carlo,\n" +
 			"evaluates each with physical forward models and writes the posterior ensemble to Parquet.\n\n" +
-			"Caution: " + inversion.Caution,
+			"Caution: " + runfolder.Caution,
 		SilenceUsage:  true,
 		SilenceErrors: true,
-		Version:       inversion.Version,
+		Version:       runfolder.Version,
 	}
 	root.SetOut(stdout)
 	root.SetErr(stderr)

@@ -7,14 +7,17 @@ import (
 	"math"
 	"os"
 	"path/filepath"
+	"plumb/internal/testfix"
+	"reflect"
 	"strings"
 	"testing"
+	"time"
 )
 
 func plumb(t *testing.T, args ...string) (code int, stdout, stderr string) {
 	t.Helper()
 	var o, e bytes.Buffer
-	code = run(context.Background(), args, &o, &e)
+	code = runCLI(context.Background(), args, &o, &e)
 	return code, o.String(), e.String()
 }
 
@@ -27,23 +30,8 @@ func write(t *testing.T, dir, name, text string) string {
 	return p
 }
 
-const smallConfig = `planet: {name: Testa, radius_km: 3000}
-layers:
-  - name: core
-    outer_radius_km: {prior: uniform, min: 500, max: 2500}
-    density_kg_m3: {prior: uniform, min: 5000, max: 11000}
-    vp_km_s: 5
-    state: liquid
-  - name: mantle
-    density_kg_m3: {prior: uniform, min: 3000, max: 4000}
-    vp_km_s: 8
-    vs_km_s: 4.5
-observations:
-  mass_kg: {value: 4.0e23, sigma: 4.0e20}
-  moi_factor: {value: 0.36, sigma: 0.004}
-sampler: {chains: 2, warmup_steps: 100, steps: 300, thin: 1, seed: 3}
-output: {checkpoint_every_steps: 100}
-`
+// smallConfig is the shared two-layer fixture (testdata/configs/two_layers.yaml).
+var smallConfig = testfix.MustRead("two_layers.yaml")
 
 func TestCheckDemo(t *testing.T) {
 	for _, file := range []string{"config.yaml", "free_depths.yaml"} {
@@ -343,5 +331,36 @@ func TestForwardTravelTimes(t *testing.T) {
 		if wantP >= 0 && math.Abs(a.RayParameterSPerDeg-wantP) > 1e-7*wantP {
 			t.Errorf("%s at %g°: p %.9f s/deg, want %.9f", tt.Phase, tt.DistanceDeg, a.RayParameterSPerDeg, wantP)
 		}
+	}
+}
+
+// A resume uses the run's own config: an override in the environment is ignored with a one-line
+// notice naming it (before, it changed the config's hash and the resume was refused), and the
+// resumed run ends with the rows of an uninterrupted one.
+func TestResumeIgnoresEnvironment(t *testing.T) {
+	dir := t.TempDir()
+	cfg := write(t, dir, "c.yaml", strings.Replace(smallConfig, "steps: 300", "steps: 3000", 1))
+	ref := filepath.Join(dir, "ref")
+	if code, _, e := plumb(t, "run", cfg, "--out", ref); code != 0 {
+		t.Fatalf("reference run: exit %d: %s", code, e)
+	}
+	runDir := filepath.Join(dir, "run")
+	ctx, cancel := context.WithTimeout(context.Background(), 20*time.Millisecond)
+	var o, e bytes.Buffer
+	code := runCLI(ctx, []string{"run", cfg, "--out", runDir}, &o, &e)
+	cancel()
+	if code != exitInterrupted {
+		t.Skipf("the run was not interrupted (exit %d); nothing to resume", code)
+	}
+	t.Setenv("PLUMB_SAMPLER_SEED", "7")
+	code, _, errOut := plumb(t, "resume", runDir)
+	if code != 0 {
+		t.Fatalf("resume with PLUMB_SAMPLER_SEED set: exit %d: %s", code, errOut)
+	}
+	if !strings.Contains(errOut, "ignoring PLUMB_SAMPLER_SEED") || strings.Count(errOut, "PLUMB_SAMPLER_SEED") != 1 {
+		t.Errorf("want one notice naming PLUMB_SAMPLER_SEED, got:\n%s", errOut)
+	}
+	if !reflect.DeepEqual(rowsOf(t, runDir), rowsOf(t, ref)) {
+		t.Error("the resumed run's rows differ from the uninterrupted run's")
 	}
 }

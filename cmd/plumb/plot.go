@@ -12,6 +12,8 @@ import (
 
 	"plumb/forward"
 	"plumb/inversion/report"
+	"plumb/inversion/results"
+	"plumb/inversion/runfolder"
 )
 
 // Figure size limits in pixels: below 200 px the labels no longer fit; above 8000 px a PNG
@@ -46,14 +48,15 @@ func plotCmd() *cobra.Command {
 		Args: cobra.ExactArgs(1),
 		RunE: func(cmd *cobra.Command, args []string) error {
 			dir := args[0]
-			if err := requireRunDir(dir); err != nil {
+			f, err := openRunDir(dir)
+			if err != nil {
 				return err
 			}
 			opt, err := plotOptions(format, params, pairs, widthPx, heightPx)
 			if err != nil {
 				return err
 			}
-			r, err := report.Load(dir)
+			r, err := report.Load(f)
 			if err != nil {
 				return err
 			}
@@ -145,7 +148,7 @@ func checkNames(r *report.Run, opt report.Options) error {
 // truthProfile solves a truth model file and samples it for a profile line (the node count per
 // layer gives a smooth curve through self-consistent layers).
 func truthProfile(path string) (*forward.Profile, error) {
-	st, err := solveModelFile(path)
+	st, _, err := solveModelFile(path)
 	if err != nil {
 		return nil, inputError{fmt.Errorf("--truth %s: %w", path, err)}
 	}
@@ -156,12 +159,12 @@ func truthProfile(path string) (*forward.Profile, error) {
 // truthNodesPerLayer is the number of profile nodes per layer of a truth model.
 const truthNodesPerLayer = 64
 
-// summaryMarkdown writes the one-page Markdown report of the run in dir to path, refusing to
+// summaryMarkdown writes the one-page Markdown report of the run f to path, refusing to
 // overwrite an existing file. Its figures go to report.FiguresDir(path), i.e.
 // <report folder>/<report name>_figures/, as PNG; figure files of the same names there are
 // replaced. With summary's --truth, the truth model is drawn in the profiles figure when it is a
 // model file plot --truth reads.
-func summaryMarkdown(cmd *cobra.Command, dir, path string) error {
+func summaryMarkdown(cmd *cobra.Command, f *runfolder.Folder, path string) error {
 	if _, err := os.Stat(path); err == nil {
 		return inputError{fmt.Errorf("--markdown %s: exists; not overwriting", path)}
 	} else if !errors.Is(err, os.ErrNotExist) {
@@ -178,7 +181,15 @@ func summaryMarkdown(cmd *cobra.Command, dir, path string) error {
 			fmt.Fprintf(cmd.ErrOrStderr(), "plumb: report without a truth profile: %v\n", err)
 		}
 	}
-	figs, err := report.MarkdownReport(dir, path, opt, cmd.ErrOrStderr())
+	r, err := report.Load(f)
+	if err != nil {
+		return err
+	}
+	s, err := results.Summarize(f)
+	if err != nil {
+		return err
+	}
+	figs, err := report.MarkdownReport(r, s, path, opt, cmd.ErrOrStderr())
 	if err != nil {
 		return err
 	}

@@ -6,46 +6,22 @@ import (
 	"image/png"
 	"os"
 	"path/filepath"
+	"plumb/internal/testfix"
 	"regexp"
 	"strings"
 	"testing"
 )
 
-// plotConfig is a quick closed-form run with a categorical core state and a profiles table.
-const plotConfig = `planet: {name: Plotta, radius_km: 3000}
-layers:
-  - name: core
-    outer_radius_km: {prior: uniform, min: 500, max: 2500}
-    density_kg_m3: {prior: uniform, min: 5000, max: 11000}
-    vp_km_s: 5
-    vs_km_s: 2
-    state: {prior: categorical, values: [liquid, solid]}
-  - name: mantle
-    density_kg_m3: {prior: uniform, min: 3000, max: 4000}
-    vp_km_s: 8
-    vs_km_s: 4.5
-observations:
-  mass_kg: {value: 4.0e23, sigma: 4.0e20}
-  moi_factor: {value: 0.36, sigma: 0.004}
-sampler: {chains: 2, warmup_steps: 100, steps: 400, thin: 1, seed: 5}
-output:
-  checkpoint_every_steps: 100
-  profiles: {every_draws: 10, radius_step_km: 50}
-`
+// plotConfig is the two-layer fixture made a quick closed-form run with a categorical core state
+// and a profiles table.
+var plotConfig = testfix.Edit(testfix.MustRead("two_layers.yaml"),
+	"planet: {name: Testa,", "planet: {name: Plotta,",
+	"    vp_km_s: 5\n    state: liquid\n", "    vp_km_s: 5\n    vs_km_s: 2\n    state: {prior: categorical, values: [liquid, solid]}\n",
+	"steps: 300, thin: 1, seed: 3}", "steps: 400, thin: 1, seed: 5}",
+	"output: {checkpoint_every_steps: 100}\n", "output:\n  checkpoint_every_steps: 100\n  profiles: {every_draws: 10, radius_step_km: 50}\n")
 
-// truthModel is a layered model file (the truth for --truth).
-const truthModel = `planet: {name: Plotta, radius_km: 3000}
-layers:
-  - name: core
-    outer_radius_km: 1500
-    density_kg_m3: 8000
-    vp_km_s: 5
-    state: liquid
-  - name: mantle
-    density_kg_m3: 3500
-    vp_km_s: 8
-    vs_km_s: 4.5
-`
+// truthModel is a layered model file (the truth for --truth): the two-layer fixture's truth.
+var truthModel = testfix.MustRead("two_layers_truth.yaml")
 
 // newPlotRun runs plotConfig into a temp folder and returns the run folder.
 func newPlotRun(t *testing.T) string {

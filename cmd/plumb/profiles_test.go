@@ -10,7 +10,7 @@ import (
 	"testing"
 
 	"plumb/forward"
-	"plumb/inversion"
+	"plumb/inversion/runfolder"
 	"plumb/inversion/store"
 )
 
@@ -52,7 +52,7 @@ output: {checkpoint_every_steps: 100, profiles: {every_draws: 10, radius_step_km
 	if n := len(want.Radius); n != 85 { // 0, 50, …, 4200 km
 		t.Fatalf("forward profile has %d radii, want 85", n)
 	}
-	b, _, err := store.ReadParts(filepath.Join(runDir, inversion.ProfilesDir))
+	b, _, err := store.ReadParts(filepath.Join(runDir, runfolder.ProfilesDir))
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -63,11 +63,11 @@ output: {checkpoint_every_steps: 100, profiles: {every_draws: 10, radius_step_km
 		}
 		return v
 	}
-	chain, _ := b.Int64(inversion.ColChain)
-	draw, _ := b.Int64(inversion.ColDraw)
-	layer, _ := b.String(inversion.ColLayer)
-	r, rho, vp, vs, g, p := col(inversion.ColRadiusKm), col(inversion.ColDensity), col(inversion.ColVp),
-		col(inversion.ColVs), col(inversion.ColGravity), col(inversion.ColPressureGPa)
+	chain, _ := b.Int64(runfolder.ColChain)
+	draw, _ := b.Int64(runfolder.ColDraw)
+	layer, _ := b.String(runfolder.ColLayer)
+	r, rho, vp, vs, g, p := col(runfolder.ColRadiusKm), col(runfolder.ColDensity), col(runfolder.ColVp),
+		col(runfolder.ColVs), col(runfolder.ColGravity), col(runfolder.ColPressureGPa)
 	// 2 chains × 100 kept draws, every 10th profiled: 20 draws × 85 radii.
 	if b.Len() != 20*85 {
 		t.Fatalf("profile table has %d rows, want %d", b.Len(), 20*85)

@@ -11,7 +11,9 @@ import (
 
 	"github.com/spf13/cobra"
 
-	"plumb/inversion"
+	"plumb/inversion/problem"
+	"plumb/inversion/results"
+	"plumb/inversion/runfolder"
 	"plumb/inversion/store"
 )
 
@@ -51,11 +53,11 @@ func synthCmd() *cobra.Command {
 				// TOML would need a writer of its own.
 				return inputError{fmt.Errorf("%s: synth rewrites YAML configs only (convert this one to YAML)", path)}
 			}
-			cfg, err := inversion.Load(path, nil)
+			cfg, err := problem.Load(path, configOverrides(nil))
 			if err != nil {
 				return err
 			}
-			p, err := inversion.Build(cfg, path)
+			p, err := problem.Build(cfg, path)
 			if err != nil {
 				return err
 			}
@@ -63,7 +65,7 @@ func synthCmd() *cobra.Command {
 			if err != nil {
 				return inputError{fmt.Errorf("%s: %w", path, err)}
 			}
-			pred, err := inversion.TruthPredictions(truth, p)
+			pred, err := problem.TruthPredictions(truth, p)
 			if err != nil {
 				return err
 			}
@@ -73,10 +75,10 @@ func synthCmd() *cobra.Command {
 				if !f.Changed("seed") {
 					seed = cfg.Sampler.Seed // as plumb run resolves it (PLUMB_SAMPLER_SEED included)
 				}
-				r = inversion.SynthRand(seed)
+				r = problem.SynthRand(seed)
 				noise = fmt.Sprintf("noise seed %d", seed)
 			}
-			b, err := inversion.ReplaceObservations(src, path, p, inversion.AddNoise(p, pred, r))
+			b, err := problem.ReplaceObservations(src, path, p, problem.AddNoise(p, pred, r))
 			if err != nil {
 				return err
 			}
@@ -88,7 +90,7 @@ func synthCmd() *cobra.Command {
 				return fmt.Errorf("write %s: %w", out, err)
 			}
 			fmt.Fprintf(cmd.ErrOrStderr(), "synth: %d observations from truth %s, %s\n", len(pred), truth, noise)
-			if x, err := inversion.LoadTruth(truth, p); err == nil && math.IsInf(p.Space.LogPrior(x), -1) {
+			if x, err := problem.LoadTruth(truth, p); err == nil && math.IsInf(p.Space.LogPrior(x), -1) {
 				fmt.Fprintf(cmd.ErrOrStderr(), "synth: note: the truth lies outside the config's prior support\n")
 			}
 			return nil
@@ -102,11 +104,11 @@ func synthCmd() *cobra.Command {
 	return c
 }
 
-// summaryTruth prints where the truth in truthPath falls in the posterior of the run in dir: per
+// summaryTruth prints where the truth in truthPath falls in the posterior of the run f: per
 // parameter the true value, its posterior quantile and whether it lies in the central 90 %
 // interval; per categorical parameter the posterior probability of the true level.
-func summaryTruth(w io.Writer, dir, truthPath string, asJSON bool) error {
-	tc, err := inversion.CompareTruth(dir, truthPath)
+func summaryTruth(w io.Writer, f *runfolder.Folder, truthPath string, asJSON bool) error {
+	tc, err := results.CompareTruth(f, truthPath)
 	if err != nil {
 		return err
 	}

@@ -5,16 +5,13 @@ import (
 	"encoding/json"
 	"os"
 	"path/filepath"
+	"plumb/internal/testfix"
 	"strings"
 	"testing"
 )
 
-// smallTruth is a truth for smallConfig (main_test.go).
-const smallTruth = `planet: {radius_km: 3000}
-layers:
-  - {name: core, outer_radius_km: 1500, density_kg_m3: 8000, vp_km_s: 5, state: liquid}
-  - {name: mantle, density_kg_m3: 3500, vp_km_s: 8, vs_km_s: 4.5}
-`
+// smallTruth is the truth of smallConfig (testdata/configs/two_layers_truth.yaml).
+var smallTruth = testfix.MustRead("two_layers_truth.yaml")
 
 // synth writes configs that plumb run accepts as they are; the same seed gives the same bytes,
 // the default seed is the config's sampler.seed; --out never overwrites; summary --truth reports

@@ -38,13 +38,7 @@ func NewBM3(rho0, k0, k0p float64, shear ShearLaw) (BM3, error) {
 
 // Validate checks the parameters as NewBM3 does.
 func (b BM3) Validate() error {
-	if err := checkReference("BM3", b.Rho0, b.K0, b.K0p); err != nil {
-		return err
-	}
-	if err := b.Shear.Validate(); err != nil {
-		return fmt.Errorf("eos: BM3: %w", err)
-	}
-	return nil
+	return checkHost("BM3", b.Rho0, b.K0, b.K0p, b.Shear)
 }
 
 // ReferenceDensity returns Rho0.

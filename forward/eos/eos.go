@@ -1,25 +1,3 @@
-// Package eos holds equations of state for planetary materials: pressure, bulk and shear moduli
-// as functions of density (isothermal reference), and their inversion from pressure to density.
-// Everything is in SI units (kg/m³, Pa). The package is pure: no randomness, no I/O, no globals.
-//
-// Three equations of state implement EOS: Constant (incompressible), BM3 (third-order
-// Birch–Murnaghan) and Vinet. BM3 and Vinet carry a ShearLaw for the shear modulus. All of them
-// are small value types; build them with NewConstant, NewBM3 and NewVinet, which validate the
-// parameters. Density checks again the parameters it uses (ρ0, K0, K0′), so a literal built
-// without a constructor gives an error there rather than a meaningless number.
-//
-// Domain conventions, shared by all types:
-//   - Density accepts 0 ≤ p < +Inf (−0 counts as 0). A negative, NaN or infinite pressure is an
-//     error wrapping ErrPressure; so is a pressure the EOS cannot reach (BM3 beyond its
-//     turnover) or one that would compress beyond MaxCompression. Negative pressures are
-//     refused rather than followed into extension: the solver needs only p ≥ 0, and each form
-//     has a spinodal (dP/dρ → 0) somewhere below zero. Density never returns NaN or Inf with a
-//     nil error.
-//   - Pressure, BulkModulus and ShearModulus have no error result: for a density that is not
-//     finite and positive they return NaN, the documented signal of misuse. Densities below the
-//     reference (extension, negative pressure) are evaluated by the same formulas.
-//   - Velocities is the checked way to get seismic velocities; it returns an error wrapping
-//     ErrDensity or ErrModulus instead of NaN.
 package eos
 
 import (
@@ -160,6 +138,18 @@ func checkReference(what string, rho0, k0, k0p float64) error {
 	return nil
 }
 
+// checkHost validates the parameters of a BM3 or Vinet EOS: the reference parameters
+// (checkReference) and the shear law; what names the EOS.
+func checkHost(what string, rho0, k0, k0p float64, shear ShearLaw) error {
+	if err := checkReference(what, rho0, k0, k0p); err != nil {
+		return err
+	}
+	if err := shear.Validate(); err != nil {
+		return fmt.Errorf("eos: %s: %w", what, err)
+	}
+	return nil
+}
+
 // checkPressure rejects pressures no EOS here can be inverted at; what names the EOS.
 func checkPressure(what string, p float64) error {
 	if !(p >= 0) || math.IsInf(p, 1) {
@@ -172,14 +162,14 @@ func checkPressure(what string, p float64) error {
 // relation (ρ/ρ0)^{K0′} = 1 + K0′p/K0, i.e. (1 + K0′p/K0)^{a/K0′}, to approxPow's accuracy.
 // BM3 and Vinet share K0 and K0′ with it, so their ln ρ(p) = ∫dp/K agrees with Murnaghan's to
 // second order in p (they differ through K0″); that makes it the starting guess of their
-// iterations (≈ 2–3 % off at 330 GPa for iron), and the guess needs no more accuracy.
+// iterations, and the guess needs no more accuracy.
 func murnaghanRatio(p, k0, k0p, a float64) float64 {
 	return approxPow(1+k0p*p/k0, a/k0p)
 }
 
 // approxPow returns ≈ b^a for b ≥ 1 (b = +Inf gives 0 or +Inf) to a relative error below
 // 4e-8·|a| + 2e-7 for |a ln b| ≤ 690, and a clamped finite value beyond. It replaces math.Pow
-// (≈ 50 ns) in the starting guesses, where speed matters and accuracy does not. ln b =
+// in the starting guesses, where speed matters and accuracy does not. ln b =
 // k ln 2 + ln m with m ∈ [√½, √2) and ln m = 2 atanh s, s = (m − 1)/(m + 1), |s| ≤ 0.172, by
 // its series to s⁷ (error ≤ 2|s|⁹/9 ≈ 3.4e-8); then b^a = 2^n e^{t ln 2}, |t| ≤ ½, by a degree-6
 // Taylor polynomial (error ≤ (ln 2/2)⁷/7! ≈ 1.2e-7).
@@ -215,7 +205,7 @@ func approxPow(b, a float64) float64 {
 	return e * math.Float64frombits(uint64(int64(n)+1023)<<52) // e·2ⁿ, |n| ≤ 1000 is normal
 }
 
-// maxIter bounds the safeguarded iterations. Halley from the Murnaghan guess takes 2–4 steps;
+// maxIter bounds the safeguarded iterations. Halley from the Murnaghan guess needs a few steps;
 // even pure bisection of the finite brackets (u ∈ [1, maxU], x ∈ [minX, 1]) reaches stepTol in
 // under 60, so hitting the bound means a bug, reported as an error rather than a hang.
 const maxIter = 200

@@ -38,13 +38,7 @@ func NewVinet(rho0, k0, k0p float64, shear ShearLaw) (Vinet, error) {
 
 // Validate checks the parameters as NewVinet does.
 func (v Vinet) Validate() error {
-	if err := checkReference("Vinet", v.Rho0, v.K0, v.K0p); err != nil {
-		return err
-	}
-	if err := v.Shear.Validate(); err != nil {
-		return fmt.Errorf("eos: Vinet: %w", err)
-	}
-	return nil
+	return checkHost("Vinet", v.Rho0, v.K0, v.K0p, v.Shear)
 }
 
 // ReferenceDensity returns Rho0.

@@ -202,8 +202,8 @@ func powerNodes(R, v0, b float64, n int) []Node {
 // (derived here; the same closed forms as Bullen & Bolt 1985, §7.3, from
 // memory), η_R = R/v0. A power law is represented exactly by Bullen shells
 // with nodes sampled from it, so the code must agree to rounding; checked at
-// 1e-7 relative (the task's bound) for rays turning above the innermost
-// (constant-velocity) shell.
+// 1e-7 relative (an accuracy target; common practice, no source) for rays
+// turning above the innermost (constant-velocity) shell.
 func TestPowerLawSphere(t *testing.T) {
 	const R, v0 = 6371e3, 6000.0
 	var wt, wi worst

@@ -82,22 +82,6 @@ func TestPREMShadowAndCaustic(t *testing.T) {
 	}
 }
 
-// FindCore on PREM returns its CMB (largest density jump) and ICB (solid
-// under fluid), 3480 and 1221.5 km (Dziewonski & Anderson 1981).
-func TestFindCore(t *testing.T) {
-	cmb, icb := FindCore(prem.MustLoad(t))
-	if cmb != 3480*km || icb != 1221.5*km {
-		t.Errorf("FindCore(PREM) = %g, %g m; want 3480e3, 1221.5e3", cmb, icb)
-	}
-	if cmb, icb := FindCore(uniform(6371e3, 8000, 4500, false)); cmb != 0 || icb != 0 {
-		t.Errorf("FindCore(uniform) = %g, %g; want 0, 0", cmb, icb)
-	}
-	c := 3480e3
-	if cmb, icb := FindCore(twoLayer(6371e3, c, 11000, 6000, 9000)); cmb != c || icb != 0 {
-		t.Errorf("FindCore(two layers) = %g, %g; want %g, 0", cmb, icb, c)
-	}
-}
-
 // dT/dΔ = p along every branch (the defining property of the ray parameter;
 // Bullen & Bolt 1985 ch. 7): centred finite differences of the returned times
 // at Δ ± h, matched to the branch by ray parameter, agree with RayParam to
@@ -175,7 +159,7 @@ func match(as []Arrival, a Arrival) (Arrival, bool) {
 }
 
 // Halving the shell thickness changes PREM's P, PcP and PKIKP times by less
-// than 1 ms (acceptance criterion of the task; common practice, no source):
+// than 1 ms (the accuracy target of the shells; common practice, no source):
 // with uniform 10 km → 5 km shells (NewMediumShells) and for the default
 // discretisation against one with half the thickness and a quarter of the
 // curvature tolerance (the misfit falls as the square of the thickness), and

@@ -108,14 +108,8 @@ func ComplexLove(s *forward.Structure, n int, period float64, rh []Rheology) (k,
 // and absolute, in the dimensionless variables), 0 < tol < 1e-2.
 func ComplexLoveTol(s *forward.Structure, n int, period float64, rh []Rheology, tol float64) (k, h, l complex128, err error) {
 	nan := cmplx.NaN()
-	if s == nil || len(s.Model.Layers) == 0 {
-		return nan, nan, nan, fmt.Errorf("tides: no structure")
-	}
-	if n < 2 || n > 100 {
-		return nan, nan, nan, fmt.Errorf("tides: degree must be 2 ≤ n ≤ 100, got %d", n)
-	}
-	if !(tol > 0 && tol < 1e-2) {
-		return nan, nan, nan, fmt.Errorf("tides: tolerance must be in (0, 1e-2), got %g", tol)
+	if err := checkCall(s, n, tol); err != nil {
+		return nan, nan, nan, err
 	}
 	if !(period > 0) || math.IsInf(period, 0) {
 		return nan, nan, nan, fmt.Errorf("tides: forcing period must be finite and > 0, got %g s", period)

@@ -1,5 +1,3 @@
-// Package tides computes the static tidal response of a layered, spherically
-// symmetric, self-gravitating, compressible elastic body.
 package tides
 
 import (
@@ -12,69 +10,13 @@ import (
 
 // DefaultTol is the relative and absolute tolerance of the radial
 // integration used by Love and ComplexLove (in the dimensionless variables
-// described below). The local error control of the Dormand–Prince pair is
-// conservative here: at 1e-6 the degree-2 Love numbers of the test models
-// are within 1e-7 of an integration at 1e-12 (≤ 2e-8 for Earth-like models
-// and PREM, 9e-8 for a nearly incompressible Kelvin sphere), and halving the
-// tolerance changes k2 by < 1e-8 (TestDefaultTolAccuracy, TestConvergence) —
-// far below any measured uncertainty of a Love number — at half the cost of
-// 1e-8.
+// of the package documentation). The local error control of the
+// Dormand–Prince pair is conservative here: at DefaultTol the degree-2 Love
+// numbers of the test models agree with an integration at 1e-12 to 2e-7
+// (TestDefaultTolAccuracy), and halving the tolerance changes k2 by less
+// than 1e-7 (TestConvergence) — far below any measured uncertainty of a Love
+// number — so a tighter default would cost more for no gain that matters.
 const DefaultTol = 1e-6
-
-// The equations. Let u = U(r) Y r̂ + V(r) r∇Y be the displacement of degree
-// n (L = n(n+1)), P(r) Y the Eulerian perturbation of the gravitational
-// potential V (sign such that the body force per unit mass is +∇V, so that the
-// unperturbed potential has dV₀/dr = −g), and τ = λ(∇·u)I + μ(∇u + ∇uᵀ) the
-// incremental Lagrangian stress. Static equilibrium with hydrostatic
-// prestress, ∇·τ − ∇(ρ g U) + g ∇·(ρu) r̂ + ρ∇P = 0, and Poisson's
-// equation ∇²P = 4πG ∇·(ρu) (Love 1911, Some Problems of Geodynamics, ch. VII;
-// Takeuchi & Saito 1972, Methods in Computational Physics 11, 217–295, in the
-// limit ω → 0) give, with
-//
-//	y1 = U, y2 = λX + 2μ U' (X = ∇·u = U' + (2U − L V)/r), y3 = V,
-//	y4 = μ(V' − V/r + U/r), y5 = P, y6 = P' − 4πGρ U + (n+1) P/r
-//
-// (y6 as in Saito 1974, J. Phys. Earth 22, 123–140; it is continuous across
-// density jumps), β = λ + 2μ and γ = μ(3λ + 2μ)/β:
-//
-//	y1' = (−2λ y1/r + y2 + Lλ y3/r)/β
-//	y2' = (4γ/r² − 4ρg/r) y1 − 4μ/(βr) y2 + (Lρg/r − 2Lγ/r²) y3 + L y4/r + (n+1)ρ y5/r − ρ y6
-//	y3' = −y1/r + y3/r + y4/μ
-//	y4' = (ρg/r − 2γ/r²) y1 − λ/(βr) y2 + ((γ+μ)L − 2μ)/r² y3 − 3 y4/r − ρ y5/r
-//	y5' = 4πGρ y1 − (n+1) y5/r + y6
-//	y6' = 4πGρ(n+1) y1/r − 4πGρL y3/r + (n−1) y6/r
-//
-// In a static fluid (μ = 0) the tangential equation forces y2 = ρ(g y1 − y5)
-// and the displacement follows the equipotentials, y1 = y5/g, so that only
-// the potential remains (Saito 1974):
-//
-//	y5' = (4πGρ/g − (n+1)/r) y5 + y6
-//	y6' = 2(n−1)/r · 4πGρ/g · y5 + ((n−1)/r − 4πGρ/g) y6.
-//
-// At a boundary between fluid (density ρf) and solid, y1 (the solid's normal
-// displacement), y2, y5 and the y6 built with that y1 are continuous, y4 = 0
-// and y3 may slip. With the fluid's y5 and y6f (built with y5/g) this gives
-//
-//	y2 = ρf (g y1 − y5),   y6 = y6f + 4πGρf (y5/g − y1).
-//
-// A solid above a fluid therefore starts from the three solutions
-// (y5/g, 0, 0, 0, y5, y6f), (1, ρf g, 0, 0, 0, −4πGρf) and (0, 0, 1, 0, 0, 0);
-// a fluid above a solid starts from the combination of the three solid
-// solutions with y4 = 0 and y2 = ρf(g y1 − y5).
-//
-// Surface (r = R) with the tidal potential W = (r/R)ⁿ (unit at the surface):
-// y2 = y4 = 0 and y6 = (2n+1)/R · W(R); then k = y5(R)/W − 1, h = g y1(R)/W,
-// l = g y3(R)/W. A fluid surface needs y2 = 0, i.e. y1 = y5/g, and y6f = (2n+1)/R.
-//
-// The integration uses the dimensionless radius x = r/R, density ρ/ρ̄ (ρ̄ the
-// mean density), gravity g/g₀ (g₀ = GM/R²), stresses in units of ρ̄ g₀ R and
-// potentials in units of g₀ R; then 4πGρ becomes 3ρ/ρ̄ (since 4πGρ̄R = 3g₀).
-//
-// Regular solutions near the centre of a solid (homogeneous-sphere solutions,
-// Love 1911, ch. VII): u = ∇(rⁿY), u = A r²∇(rⁿY) + r rⁿY r̂ with
-// A = −(2μ + (λ+μ)(n+3))/((4n+2)μ + 2n(λ+μ)), and the one forced by the
-// potential P = rⁿ, u = A' r²∇(rⁿY) with A' = −ρ/((4n+2)μ + 2n(λ+μ)). In a
-// fluid centre, y5 = rⁿ and y6 = 2(n−1) rⁿ⁻¹ (exact for uniform density).
 
 // Love returns the degree-n (n ≥ 2) static elastic Love numbers k, h and l of
 // the solved structure s, integrating at tolerance DefaultTol. If the
@@ -88,14 +30,8 @@ func Love(s *forward.Structure, n int) (k, h, l float64, err error) {
 // in the dimensionless variables), 0 < tol < 1e-2.
 func LoveTol(s *forward.Structure, n int, tol float64) (k, h, l float64, err error) {
 	nan := math.NaN()
-	if s == nil || len(s.Model.Layers) == 0 {
-		return nan, nan, nan, fmt.Errorf("tides: no structure")
-	}
-	if n < 2 || n > 100 {
-		return nan, nan, nan, fmt.Errorf("tides: degree must be 2 ≤ n ≤ 100, got %d", n)
-	}
-	if !(tol > 0 && tol < 1e-2) {
-		return nan, nan, nan, fmt.Errorf("tides: tolerance must be in (0, 1e-2), got %g", tol)
+	if err := checkCall(s, n, tol); err != nil {
+		return nan, nan, nan, err
 	}
 	if err := checkModuli(s); err != nil {
 		return nan, nan, nan, fmt.Errorf("tides: %w", err)
@@ -105,6 +41,21 @@ func LoveTol(s *forward.Structure, n int, tol float64) (k, h, l float64, err err
 		return nan, nan, nan, err
 	}
 	return c.run()
+}
+
+// checkCall checks the arguments that Love and ComplexLove share: a structure
+// with layers, a degree 2 ≤ n ≤ 100 and a tolerance 0 < tol < 1e-2.
+func checkCall(s *forward.Structure, n int, tol float64) error {
+	if s == nil || len(s.Model.Layers) == 0 {
+		return fmt.Errorf("tides: no structure")
+	}
+	if n < 2 || n > 100 {
+		return fmt.Errorf("tides: degree must be 2 ≤ n ≤ 100, got %d", n)
+	}
+	if !(tol > 0 && tol < 1e-2) {
+		return fmt.Errorf("tides: tolerance must be in (0, 1e-2), got %g", tol)
+	}
+	return nil
 }
 
 // checkModuli checks that every solid layer has μ > 0 and a bulk modulus
@@ -204,9 +155,9 @@ func newScales(s *forward.Structure, n int) (*calc, error) {
 }
 
 // fluidTol scales the tolerance of the fluid-layer integration: the
-// two-component fluid system costs little per step but reaches only ~3e-7
-// relative at the solid tolerance 1e-6 (fluid sphere), so it is integrated
-// 100 times tighter, which brings it to the accuracy of the solid part.
+// two-component fluid system costs little per step but is less accurate than
+// the solid part at the same tolerance, so it is integrated 100 times
+// tighter, which brings it to the accuracy of the solid part.
 const fluidTol = 1e-2
 
 // contTol is the relative tolerance within which density, vp and vs must

@@ -203,8 +203,8 @@ func numericsModels(t testing.TB) []namedModel {
 	}
 }
 
-// Halving the tolerance changes k2 by less than 1e-7 (acceptance criterion of
-// the task; common practice, no source).
+// Halving the tolerance changes k2 by less than 1e-7 (an accuracy target;
+// common practice, no source).
 func TestConvergence(t *testing.T) {
 	for _, c := range numericsModels(t) {
 		s := solve(t, c.m)

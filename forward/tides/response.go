@@ -69,9 +69,8 @@ func (c *response[T]) run() (k, h, l T, err error) {
 	// error that lies along irregular solutions shrinks by x0^(2n+1) on the
 	// way out, and any mix of regular solutions is fine (the surface
 	// conditions pick the combination). x0 = min(0.1 x1, 0.01^(2/n)), x1 the
-	// top of the smooth central region: the Love numbers of the test models
-	// (uniform spheres, PREM, Earth-like with fluid or solid centre) then
-	// differ from a start at 1e-5 by < 1e-9 for n = 2, 3.
+	// top of the smooth central region, puts the start well inside that
+	// region and deep enough for that error to be negligible.
 	j0 := c.segmentEnd(0, c.rh)
 	x1 := layers[j0].Outer / c.R
 	x0 := math.Min(0.1*x1, math.Pow(1e-2, 2/n))

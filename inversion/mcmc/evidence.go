@@ -89,8 +89,8 @@ func (s LogLikStat) MCSE() float64 {
 // integration, log Z = ∫₀¹ E_β[log L] dβ, where E_β is the expectation under the power posterior
 // ∝ π(x) L(x)^β (Gelman & Meng 1998, Statist. Sci. 13, 163; Lartillot & Philippe 2006, Syst.
 // Biol. 55, 195–207). The identity gives log Z relative to the prior's normalising constant, so π
-// must be a normalised density (as plumb's priors are) and L must include its normalising
-// constants (as plumb's Gaussian likelihood does) for log Z to be the absolute evidence.
+// must be a normalised density and L must include its normalising constants (for a Gaussian
+// likelihood, its 1/√(2πσ²) factors) for log Z to be the absolute evidence.
 //
 // betas is the ladder 1 = β₀ > β₁ > … > β_{K−1} = 0 (Tempered.Betas after warm-up) and
 // stats[chain][replica] the post-warm-up statistics of each chain (Tempered.LogLikStats), which
@@ -104,11 +104,10 @@ func (s LogLikStat) MCSE() float64 {
 // memory). Between positive rungs it is applied in u = log β to g(u) = β·f(β), g′(u) = β·f + β²·f′:
 // ladders are roughly geometric and f typically varies on the scale of β itself (for a Gaussian
 // likelihood in d dimensions f ≈ c − d/(2β) once the likelihood dominates), so g is smooth in u where
-// f is steep in β. Measured with the exact moments of the conjugate 1-D Gaussian (prior sd 10 or
-// 3, likelihood sd 0.3 or 0.5) on geometric ladders of 8 rungs down to 10⁻³ or 10⁻⁴: the
-// trapezoidal rule in β is off by 0.36–1.2, the Hermite rule in β by 0.08–0.59, this rule by
-// 0.0005–0.004 (with 12 rungs: 0.12–0.41, 0.01–0.07, 0.00006–0.0044). The last interval
-// [0, β_{K−2}] uses the Hermite rule in β.
+// f is steep in β. With the exact moments of the conjugate 1-D Gaussian on geometric ladders,
+// this rule is far more accurate than the trapezoidal or the Hermite rule in β (chosen by
+// measurement; see DEVELOPERS.md, "Measurements behind design choices"). The last interval [0, β_{K−2}] uses the
+// Hermite rule in β.
 //
 // The standard error combines, in quadrature:
 //   - Monte Carlo error: the estimate is Σ w_k m_k + Σ c_k v_k (m, v the replica means and
@@ -122,28 +121,29 @@ func (s LogLikStat) MCSE() float64 {
 //     rung (which doubles the spacing in log β; once the odd, once the even rungs, so that every
 //     interval is merged with a neighbour at least once, and the larger estimate is used); on
 //     each coarse interval the coarse rule is compared with the fine rule over the same span,
-//     and |difference|/3 is summed over the intervals (absolute values, so that errors of opposite sign in different intervals cannot
-//     cancel: summing the signed differences underestimated the error almost 3-fold on one ladder of
-//     the conjugate Gaussian); plus the size of the slope correction on [0, β_{K−2}], which both
-//     ladders share (the difference between the Hermite and trapezoidal rules there, a
-//     conservative stand-in for the Hermite rule's error). Richardson's estimate for a
-//     fourth-order rule would divide by 2⁴ − 1 = 15, which assumes the asymptotic regime; on
-//     the conjugate Gaussian of TestEvidenceInputs the ratio coarse-minus-fine / true error was
-//     as low as 7.6 (K = 5), so dividing by 3 (as if second order) keeps a margin (common
-//     practice to be conservative here, no source). With K < 4 there is no coarser ladder, and
-//     the size of all slope corrections (Hermite minus trapezoidal rule) is used instead.
-//     Finally, f is nondecreasing (f′ ≥ 0), so each interval's integral lies between h·f at its
-//     ends; an interval whose Hermite value falls outside that bracket (a ladder with a gap over
-//     the prior-to-likelihood transition, which the coarsened ladders cannot detect) gets the
-//     bracket's midpoint, and its half-width is added to the error.
+//     and |difference|/3 is summed over the intervals (absolute values, so that errors of
+//     opposite sign in different intervals cannot cancel, as signed sums were measured to do;
+//     see DEVELOPERS.md, "Measurements behind design choices"); plus the size of the slope correction on
+//     [0, β_{K−2}], which both ladders share (the difference between the Hermite and trapezoidal
+//     rules there, a conservative stand-in for the Hermite rule's error). Richardson's estimate
+//     for a fourth-order rule would divide by 2⁴ − 1 = 15, which assumes the asymptotic regime;
+//     practical ladders need not be in it (on the conjugate Gaussian of TestEvidenceInputs the
+//     ratio coarse-minus-fine / true error was measured well below 15), so dividing by 3 (as if
+//     second order) keeps a margin (common practice to be conservative here, no source). With
+//     K < 4 there is no coarser ladder, and the size of all slope corrections (Hermite minus
+//     trapezoidal rule) is used instead. Finally, f is nondecreasing (f′ ≥ 0), so each
+//     interval's integral lies between h·f at its ends; an interval whose Hermite value falls
+//     outside that bracket (a ladder with a gap over the prior-to-likelihood transition, which
+//     the coarsened ladders cannot detect) gets the bracket's midpoint, and its half-width is
+//     added to the error.
 //
 // Limitation: no estimate made from the rungs alone can see structure in f between two rungs that
 // no neighbouring rung resolves — for example one interval spanning the whole transition from
-// prior-dominated to likelihood-dominated β (on the conjugate Gaussian, a ladder {1, 1 − 10⁻¹³,
-// 2·10⁻²², …} gives −64.6 ± 0.04 for an exact −3.23). Use a ladder that is roughly geometric down
-// to below that transition (the default initial ladder reaches 10⁻³; an adapted ladder needs
-// enough replicas, see TestTemperedGaussianEvidence), and check that the estimate is stable when
-// replicas are added.
+// prior-dominated to likelihood-dominated β, where the estimate can be wrong by far more than its
+// error bar (an example is in DEVELOPERS.md, "Measurements behind design choices"). Use a ladder that is roughly
+// geometric down to below that transition (the default initial ladder reaches 10⁻³; an adapted
+// ladder needs enough replicas, see TestTemperedGaussianEvidence), and check that the estimate is
+// stable when replicas are added.
 //
 // Errors: a ladder that is not strictly decreasing from 1 to 0, stats of the wrong shape, a
 // replica with no sweeps, replicas of one chain with different counts or batch layouts, fewer than

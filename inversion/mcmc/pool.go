@@ -6,28 +6,27 @@ import (
 )
 
 // Pooled warm-up. Each chain adapts its proposal from its own warm-up, and a chain alone can
-// misjudge a direction it has not explored yet: on the demo, whose crust thickness is barely
-// constrained (its posterior fills the uniform prior), a chain whose last warm-up window saw
-// only a sliver of that range adapts a proposal as narrow as the sliver, in the random walk and
-// in the independence proposal alike, and then needs far longer than the run to cover the
-// range (R̂ 1.2–1.6 on some seeds). Chains started apart have between them seen much more of
-// it. PoolWarmup therefore refits every chain's independence proposal from the moments of the
-// last warm-up window pooled over all chains — within-chain covariances plus the spread of the
-// chain means — the inter-chain adaptation of Craiu, Rosenthal & Yang (2009, JASA 104, 1454). It
-// is done once, at the end of warm-up, with the chains stopped there: afterwards the proposals
-// are fixed, so each chain is a homogeneous Markov chain with the posterior as its invariant
-// distribution, and the chains continue independently (their only link is that their proposals
-// came from one warm-up). The result does not depend on the order in which the chains reached the
-// end of warm-up.
+// misjudge a direction it has not explored yet: along a coordinate that the data barely
+// constrain (its posterior fills a uniform prior), a chain whose last warm-up window saw only a
+// sliver of that range adapts a proposal as narrow as the sliver, in the random walk and in the
+// independence proposal alike, and then needs far longer than the run to cover the range (R̂
+// flags it; see DEVELOPERS.md, "Measurements behind design choices"). Chains started apart have between them seen much
+// more of it. PoolWarmup therefore refits every chain's independence proposal from the moments of
+// a warm-up window pooled over all chains — within-chain covariances plus the spread of the chain
+// means — the inter-chain adaptation of Craiu, Rosenthal & Yang (2009, JASA 104, 1454). It is done
+// at two fixed points of warm-up, half-way and at its end, with the chains stopped there: after
+// warm-up the proposals are fixed, so each chain is a homogeneous Markov chain with the posterior
+// as its invariant distribution, and the chains continue independently (their only link is that
+// their proposals came from one warm-up). The result does not depend on the order in which the
+// chains reached the pooling point.
 
 // PoolWarmup fits the independence proposal of chains that have all just reached the same
 // point of warm-up from their pooled moments (see refit):
 //   - half-way through warm-up (Iter == Warmup/2), a provisional proposal from the window that
 //     closed there; the chains then use independence moves in the second half of warm-up, mix
 //     faster there, and so estimate the last window's moments — the final proposal's and the
-//     random walk's — much better (on the demo, over four seeds, the post-warm-up independence
-//     acceptance rose from 21–42 % to 41–47 % and the core radius's bulk-ESS from 2900–14300 to
-//     12000–14400; our choice, by measurement);
+//     random walk's — much better, which raises the post-warm-up independence acceptance and
+//     the effective sample sizes (chosen by measurement; see DEVELOPERS.md, "Measurements behind design choices");
 //   - at the end of warm-up (Iter == Warmup), the final proposal from the last window.
 //
 // One chain, or chains without independence moves, are left as they are.
@@ -121,10 +120,10 @@ func poolMoments(as []*AdaptState) (AdaptState, error) {
 // refit sets the chain's independence proposal from the pooled moments of the joint block
 // (setIndependence). The random-walk proposals keep the chain's own covariance and global scale:
 // the scale was tuned to that covariance, and chains still far apart would give a pooled
-// covariance (dominated by the spread of their means) far too wide for a local move — on the
-// test model of the inversion package, pooling the random walk too dropped its acceptance from
-// 20 % to 0.6 %. The independence proposal is fitted with its own inflation and needs no tuned
-// scale; a poor fit costs only its own acceptance.
+// covariance (dominated by the spread of their means) far too wide for a local move, whose
+// acceptance then collapses (measured; see DEVELOPERS.md, "Measurements behind design choices"). The independence
+// proposal is fitted with its own inflation and needs no tuned scale; a poor fit costs only its
+// own acceptance.
 func (ch *Chain) refit(joint AdaptState) {
 	if ch.cfg.Independence > 0 {
 		ch.setIndependence(joint)

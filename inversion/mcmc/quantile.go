@@ -45,3 +45,13 @@ func quantile7Sorted(s []float64, p float64) float64 {
 	// rather than NaN when a = −Inf and b is finite.
 	return (1-f)*a + f*b
 }
+
+// Quantile7Sorted is Quantile7 of an ascending, NaN-free slice s, without the copy and sort:
+// for callers that take several quantiles of one sample. It returns NaN when s is empty or p is
+// NaN or outside [0, 1]; an unsorted s gives a meaningless value.
+func Quantile7Sorted(s []float64, p float64) float64 {
+	if len(s) == 0 || !(p >= 0 && p <= 1) {
+		return math.NaN()
+	}
+	return quantile7Sorted(s, p)
+}

@@ -90,3 +90,24 @@ func BenchmarkQuantile7(b *testing.B) {
 		Quantile7(x, 0.05)
 	}
 }
+
+// Quantile7Sorted of a sorted sample equals Quantile7 of the unsorted one, and is NaN where
+// Quantile7 is (empty input, p outside [0, 1]).
+func TestQuantile7SortedMatchesQuantile7(t *testing.T) {
+	v := []float64{3, -1, 4, 1, 5, 9, 2, 6, 5, 3, 5}
+	s := slices.Clone(v)
+	slices.Sort(s)
+	for _, p := range []float64{0, 0.05, 0.25, 0.5, 0.75, 0.95, 1} {
+		if got, want := Quantile7Sorted(s, p), Quantile7(v, p); got != want {
+			t.Errorf("p=%g: %g, want %g", p, got, want)
+		}
+	}
+	for _, c := range []struct {
+		s []float64
+		p float64
+	}{{nil, 0.5}, {s, -0.1}, {s, 1.1}, {s, math.NaN()}} {
+		if got := Quantile7Sorted(c.s, c.p); !math.IsNaN(got) {
+			t.Errorf("Quantile7Sorted(%v, %g) = %g, want NaN", c.s, c.p, got)
+		}
+	}
+}

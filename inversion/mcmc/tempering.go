@@ -37,33 +37,16 @@ import (
 	"math/rand/v2"
 )
 
-// PriorSampler is an optional interface of a Split target that can draw exactly from its prior
-// (the density exp(logPrior), in the target's own coordinates). A tempered chain then moves its
-// β = 0 replica by such draws (see Chain.priorSweep).
-type PriorSampler interface {
-	SamplePrior(r *rand.Rand, x []float64)
-}
-
-// Split is a Target whose log density is a log prior plus a log likelihood, so that it can be
-// tempered.
-type Split interface {
-	Target
-	// LogParts returns log prior and log likelihood at x and fills derived exactly like LogDensity
-	// (LogDensity = logPrior + logLik). A point outside the support has logPrior = −Inf (or NaN).
-	LogParts(x, derived []float64) (logPrior, logLik float64)
-}
-
 // Ladder-adaptation constants of Vousden, Farr & Mandel (2016): the log temperature gaps
 // S_k = log(T_k − T_{k−1}) move by κ(t)·(A_k − A_{k+1}) after the exchange round of sweep t, with
 // κ(t) = (1/ν)·t₀/(t + t₀). Their values (from memory: ν = 100, a lag t₀ = 10⁴) suit long runs
 // with many walkers per temperature; with one replica per temperature and warm-ups of 10³–10⁴
-// sweeps they leave the ladder unconverged. We use ν = 10, t₀ = 300 (our choice, by measurement: on
-// the 2-D Gaussian of TestLadderAdaptation with K = 10, the post-warm-up max/min of the adjacent
-// acceptance rates over 4 chains was 1.42–1.44 with the paper's values after a warm-up of 2000
-// sweeps and 1.07–1.09 after 10⁴; 1.09–1.10 and 1.05–1.06 with ours). The gain still decays as
-// 1/t, so the ladder settles; at the end of a warm-up of W sweeps κ ≈ 30/W. A_k is the exchange
-// acceptance probability min(1, r) of pair (k−1, k) in that round rather than its 0/1 outcome
-// (same expectation, less noise; our choice). The log gaps are kept within
+// sweeps they leave the ladder unconverged. We use ν = 10, t₀ = 300, chosen by measurement on the
+// 2-D Gaussian of TestLadderAdaptation: the adjacent acceptance rates then come out more nearly
+// equal after warm-ups of that length (see DEVELOPERS.md, "Measurements behind design choices"). The gain still
+// decays as 1/t, so the ladder settles; at the end of a warm-up of W sweeps κ ≈ 30/W. A_k is the
+// exchange acceptance probability min(1, r) of pair (k−1, k) in that round rather than its 0/1
+// outcome (same expectation, less noise; our choice). The log gaps are kept within
 // [logGapMin, logGapMax] so that no temperature can overflow.
 const (
 	ladderNu       = 10.0

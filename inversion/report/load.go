@@ -1,41 +1,34 @@
-// Package report draws the figures of a run folder and writes its one-page Markdown report.
-//
-// Load reads everything a figure needs (config, problem, checkpoint, sample table and, when the
-// run has one, the profiles table) once; every figure function takes the loaded *Run and returns
-// a *Figure, which Save renders to PNG, SVG or PDF. All figures are drawn in grey levels only,
-// with series told apart by line style, dash pattern and fill level, so they survive greyscale
-// printing. Values are shown in the output units of the sample table (km, kg/m3, km/s, …).
 package report
 
 import (
-	"errors"
 	"fmt"
 	"math"
-	"os"
-	"path/filepath"
 	"slices"
 	"strings"
 
-	"plumb/inversion"
+	"plumb/inversion/problem"
+	"plumb/inversion/runfolder"
 	"plumb/inversion/store"
 	"plumb/priors"
 )
 
 // Column names of the samples and profiles tables used here.
 const (
-	colChain = inversion.ColChain
-	colDraw  = inversion.ColDraw
+	colChain = runfolder.ColChain
+	colDraw  = runfolder.ColDraw
 )
 
 // Run is a run folder loaded for reporting.
 type Run struct {
-	// Dir is the run folder.
+	// Folder is the opened run folder the rest was read from.
+	Folder *runfolder.Folder
+	// Dir is the run folder's path.
 	Dir string
 	// Config and Problem are the run's resolved config and the problem built from it.
-	Config  *inversion.Config
-	Problem *inversion.Problem
+	Config  *problem.Config
+	Problem *problem.Problem
 	// Checkpoint is the run's checkpoint (never nil: Load refuses a run without one).
-	Checkpoint *inversion.Checkpoint
+	Checkpoint *runfolder.Checkpoint
 	// Samples is the whole sample table.
 	Samples *store.Batch
 	// Profiles is the whole profiles table, nil when the run has none.
@@ -59,46 +52,31 @@ type Param struct {
 	ToUnit float64
 }
 
-// Load reads the run folder dir: its config and problem, checkpoint, samples and, if present,
-// profiles. A run without a checkpoint or without samples is an error.
-func Load(dir string) (*Run, error) {
-	cfg, p, err := inversion.LoadRun(dir)
-	if err != nil {
+// Load prepares the opened run folder f for reporting: it reads its samples and, if present,
+// its profiles (through f, so once per command). A run without a checkpoint or without draws is
+// an error.
+func Load(f *runfolder.Folder) (*Run, error) {
+	if err := f.Started(); err != nil {
 		return nil, err
 	}
-	cp, err := inversion.ReadCheckpoint(dir)
+	dir := f.Dir
+	b, err := f.Samples()
 	if err != nil {
 		return nil, err
-	}
-	if cp == nil {
-		return nil, fmt.Errorf("%s: no checkpoint: the run has not started", dir)
-	}
-	b, _, err := store.ReadParts(filepath.Join(dir, inversion.SamplesDir))
-	if err != nil {
-		return nil, fmt.Errorf("%s: read samples: %w", dir, err)
 	}
 	if b.Len() == 0 {
 		return nil, fmt.Errorf("%s: the run has no draws yet", dir)
 	}
-	r := &Run{Dir: dir, Config: cfg, Problem: p, Checkpoint: cp, Samples: b, chains: len(cp.Chains)}
-	chain, ok := b.Int64(inversion.ColChain)
+	r := &Run{Folder: f, Dir: dir, Config: f.Config, Problem: f.Problem, Checkpoint: f.Checkpoint, Samples: b, chains: len(f.Checkpoint.Chains)}
+	chain, ok := b.Int64(runfolder.ColChain)
 	if !ok {
-		return nil, fmt.Errorf("%s: samples lack the %s column", dir, inversion.ColChain)
+		return nil, fmt.Errorf("%s: samples lack the %s column", dir, runfolder.ColChain)
 	}
 	for _, c := range chain {
 		r.chains = max(r.chains, int(c)+1)
 	}
-	pdir := filepath.Join(dir, inversion.ProfilesDir)
-	if _, err := os.Stat(pdir); err == nil {
-		pb, _, err := store.ReadParts(pdir)
-		if err != nil {
-			return nil, fmt.Errorf("%s: read profiles: %w", dir, err)
-		}
-		if pb.Len() > 0 {
-			r.Profiles = pb
-		}
-	} else if !errors.Is(err, os.ErrNotExist) {
-		return nil, fmt.Errorf("%s: %w", dir, err)
+	if r.Profiles, err = f.Profiles(); err != nil {
+		return nil, err
 	}
 	return r, nil
 }
@@ -107,8 +85,8 @@ func Load(dir string) (*Run, error) {
 func (r *Run) Chains() int { return r.chains }
 
 // fixedColumns are the bookkeeping columns of every sample table.
-var fixedColumns = []string{inversion.ColChain, inversion.ColDraw, inversion.ColLogPrior,
-	inversion.ColLogLikelihood, inversion.ColLogPosterior}
+var fixedColumns = []string{runfolder.ColChain, runfolder.ColDraw, runfolder.ColLogPrior,
+	runfolder.ColLogLikelihood, runfolder.ColLogPosterior}
 
 // Continuous lists the continuous sampled parameters in problem order, then the derived layer
 // radii (float columns of the sample table that are neither bookkeeping, parameters nor
@@ -125,7 +103,7 @@ func (r *Run) Continuous() []Param {
 	}
 	for _, c := range r.Samples.Columns {
 		if c.Kind != store.Float64 || known[c.Name] || slices.Contains(fixedColumns, c.Name) ||
-			strings.HasPrefix(c.Name, inversion.PredictionPrefix) {
+			strings.HasPrefix(c.Name, runfolder.PredictionPrefix) {
 			continue
 		}
 		out = append(out, Param{Name: c.Name, Unit: c.Unit, ToUnit: 1})
@@ -172,7 +150,7 @@ func (r *Run) values(name string) []float64 {
 // byChain splits column name by chain, in draw order within each chain.
 func (r *Run) byChain(name string) [][]float64 {
 	v := r.values(name)
-	chain, _ := r.Samples.Int64(inversion.ColChain)
+	chain, _ := r.Samples.Int64(runfolder.ColChain)
 	out := make([][]float64, r.chains)
 	for i, c := range chain {
 		out[c] = append(out[c], v[i])

@@ -8,7 +8,7 @@ import (
 	"path/filepath"
 	"strings"
 
-	"plumb/inversion"
+	"plumb/inversion/results"
 	"plumb/inversion/store"
 )
 
@@ -26,7 +26,7 @@ var figureCaptions = map[string]string{
 // run's state, run facts, the parameter table, categorical probabilities, the observation fit,
 // the evidence when the run has one, the figures (figs, linked relative to the folder reportDir
 // the report is written to) and the caution.
-func WriteMarkdown(w io.Writer, r *Run, s *inversion.Summary, figs []Written, reportDir string) error {
+func WriteMarkdown(w io.Writer, r *Run, s *results.Summary, figs []Written, reportDir string) error {
 	var b bytes.Buffer
 	state := "complete"
 	switch {
@@ -132,7 +132,7 @@ const (
 
 // convergenceNote warns, in one line, when some parameter's R̂ or bulk-ESS misses the
 // thresholds; "" when all meet them.
-func convergenceNote(s *inversion.Summary) string {
+func convergenceNote(s *results.Summary) string {
 	worstR, worstRName, leastESS, leastESSName := 0.0, "", math.Inf(1), ""
 	for _, p := range s.Parameters {
 		if p.RHat != nil && *p.RHat > worstR {
@@ -185,19 +185,11 @@ func FiguresDir(reportPath string) string {
 	return filepath.Join(filepath.Dir(reportPath), base+"_figures")
 }
 
-// MarkdownReport writes the report of the run in dir to reportPath (atomically): it summarises
-// the run, draws the figures as PNG into FiguresDir(reportPath) (replacing figure files of the
+// MarkdownReport writes the report of the loaded run r, whose summary is s, to reportPath
+// (atomically): it draws the figures as PNG into FiguresDir(reportPath) (replacing figure files of the
 // same names) and writes the Markdown. opt.Format and the size are forced to PNG at the default
 // size when unset. It returns the figures written.
-func MarkdownReport(dir, reportPath string, opt Options, notes io.Writer) ([]Written, error) {
-	r, err := Load(dir)
-	if err != nil {
-		return nil, err
-	}
-	s, err := inversion.Summarize(dir)
-	if err != nil {
-		return nil, err
-	}
+func MarkdownReport(r *Run, s *results.Summary, reportPath string, opt Options, notes io.Writer) ([]Written, error) {
 	opt.Format = "png"
 	figs, err := DrawAll(r, FiguresDir(reportPath), opt, notes)
 	if err != nil {

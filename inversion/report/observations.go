@@ -3,14 +3,14 @@ package report
 import (
 	"fmt"
 	"math"
+	"plumb/inversion/mcmc"
+	"plumb/inversion/runfolder"
 	"slices"
 
 	"gonum.org/v1/plot"
 	"gonum.org/v1/plot/plotter"
 	"gonum.org/v1/plot/vg"
 	"gonum.org/v1/plot/vg/draw"
-
-	"plumb/inversion"
 )
 
 // ObservationFit is the posterior predictive of one observation, normalised as
@@ -34,14 +34,14 @@ func (r *Run) ObservationFits() []ObservationFit {
 	for _, o := range r.Problem.Observations {
 		si := o.Observable.ToSI()
 		f := ObservationFit{Key: o.Observable.Key, Unit: o.Observable.Unit, Observed: o.Value / si, Sigma: o.Sigma / si}
-		v, _ := r.Samples.Float64(inversion.PredictionPrefix + o.Observable.Key)
+		v, _ := r.Samples.Float64(runfolder.PredictionPrefix + o.Observable.Key)
 		z := make([]float64, len(v))
 		for k, x := range v {
 			z[k] = (x - f.Observed) / f.Sigma
 		}
 		z = finiteSorted(z)
 		for k, p := range fitQuantiles {
-			f.Q[k] = quantileSorted(z, p)
+			f.Q[k] = mcmc.Quantile7Sorted(z, p)
 		}
 		out = append(out, f)
 	}

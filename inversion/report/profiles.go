@@ -11,7 +11,8 @@ import (
 	"gonum.org/v1/plot/vg/draw"
 
 	"plumb/forward"
-	"plumb/inversion"
+	"plumb/inversion/mcmc"
+	"plumb/inversion/runfolder"
 )
 
 // ProfileBands are pointwise posterior quantiles of one property on the profiles' radius grid.
@@ -32,9 +33,9 @@ type profileProperty struct {
 
 // profileProperties are the panels of the profiles figure.
 var profileProperties = []profileProperty{
-	{inversion.ColDensity, "density", "kg/m3", 1, func(p *forward.Profile) []float64 { return p.Density }},
-	{inversion.ColVp, "vp", "km/s", 1e-3, func(p *forward.Profile) []float64 { return p.Vp }},
-	{inversion.ColVs, "vs", "km/s", 1e-3, func(p *forward.Profile) []float64 { return p.Vs }},
+	{runfolder.ColDensity, "density", "kg/m3", 1, func(p *forward.Profile) []float64 { return p.Density }},
+	{runfolder.ColVp, "vp", "km/s", 1e-3, func(p *forward.Profile) []float64 { return p.Vp }},
+	{runfolder.ColVs, "vs", "km/s", 1e-3, func(p *forward.Profile) []float64 { return p.Vs }},
 }
 
 // Bands computes the pointwise quantiles of the profiles column col at each grid radius.
@@ -42,9 +43,9 @@ func (r *Run) Bands(col string) (*ProfileBands, error) {
 	if r.Profiles == nil {
 		return nil, fmt.Errorf("no profiles table: %w", ErrNothingToDraw)
 	}
-	rad, ok := r.Profiles.Float64(inversion.ColRadiusKm)
+	rad, ok := r.Profiles.Float64(runfolder.ColRadiusKm)
 	if !ok {
-		return nil, fmt.Errorf("profiles table lacks %s", inversion.ColRadiusKm)
+		return nil, fmt.Errorf("profiles table lacks %s", runfolder.ColRadiusKm)
 	}
 	v, ok := r.Profiles.Float64(col)
 	if !ok {
@@ -76,7 +77,7 @@ func (r *Run) Bands(col string) (*ProfileBands, error) {
 		if len(s) > 0 {
 			b.RadiusKm = append(b.RadiusKm, rad[idx[lo]])
 			for k, p := range fitQuantiles {
-				b.Q[k] = append(b.Q[k], quantileSorted(s, p))
+				b.Q[k] = append(b.Q[k], mcmc.Quantile7Sorted(s, p))
 			}
 		}
 		lo = hi
@@ -101,7 +102,7 @@ func (r *Run) profiledDraws() int {
 // ErrNothingToDraw when the run has no profiles table.
 func Profiles(r *Run, truth *forward.Profile) (*Figure, error) {
 	if r.Profiles == nil {
-		return nil, fmt.Errorf("run %s has no %s table: %w", r.Dir, inversion.ProfilesDir, ErrNothingToDraw)
+		return nil, fmt.Errorf("run %s has no %s table: %w", r.Dir, runfolder.ProfilesDir, ErrNothingToDraw)
 	}
 	medStyle := draw.LineStyle{Color: black, Width: vg.Points(1.8)}
 	truthStyle := draw.LineStyle{Color: black, Width: vg.Points(1.6), Dashes: dashDot}

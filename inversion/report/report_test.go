@@ -14,39 +14,22 @@ import (
 	"strings"
 	"testing"
 
-	"plumb/inversion"
+	"plumb/internal/testfix"
 	"plumb/inversion/mcmc"
+	"plumb/inversion/problem"
+	"plumb/inversion/results"
+	"plumb/inversion/run"
+	"plumb/inversion/runfolder"
 	"plumb/priors"
 )
 
-// testConfig is a small closed-form problem (no EOS, so a run takes well under a second) with
-// every kind of figure content: uniform, normal and log-uniform priors, a density gradient, a
-// categorical core state, a derived layer radius, two observations and a profiles table.
-const testConfig = `planet: {name: Testa, radius_km: 3000}
-layers:
-  - name: core
-    outer_radius_km: {prior: uniform, min: 500, max: 2500}
-    density_kg_m3: {prior: uniform, min: 5000, max: 11000}
-    vp_km_s: 5
-    vs_km_s: 2
-    state: {prior: categorical, values: [liquid, solid], weights: [3, 1]}
-  - name: mantle
-    density_kg_m3: {inner: {prior: normal, mean: 3600, sigma: 100}, outer: 3300}
-    vp_km_s: 8
-    vs_km_s: 4.5
-  - name: crust
-    thickness_km: {prior: log_uniform, min: 10, max: 100}
-    density_kg_m3: 2800
-    vp_km_s: 6
-    vs_km_s: 3.5
-observations:
-  mass_kg: {value: 4.0e23, sigma: 4.0e20}
-  moi_factor: {value: 0.36, sigma: 0.004}
-sampler: {chains: 2, warmup_steps: 200, steps: 600, thin: 2, seed: 11}
-output:
-  checkpoint_every_steps: 200
-  profiles: {every_draws: 5, radius_step_km: 50}
-`
+// testConfig is the shared three-layer fixture (no EOS, so a run takes well under a second)
+// made to show every kind of figure content: uniform, normal and log-uniform priors, a density
+// gradient, a categorical core state with unequal prior weights, a derived layer radius, two
+// observations and a profiles table.
+var testConfig = testfix.Edit(testfix.MustRead("three_layers.yaml"),
+	"values: [liquid, solid]}", "values: [liquid, solid], weights: [3, 1]}",
+	"  checkpoint_every_steps: 100\n", "  checkpoint_every_steps: 200\n  profiles: {every_draws: 5, radius_step_km: 50}\n")
 
 // newRun samples text into a fresh run folder and loads it.
 func newRun(t *testing.T, text string) *Run {
@@ -56,29 +39,19 @@ func newRun(t *testing.T, text string) *Run {
 	if err := os.WriteFile(path, []byte(text), 0o644); err != nil {
 		t.Fatal(err)
 	}
-	cfg, err := inversion.Load(path, nil)
+	cfg, err := problem.Load(path, nil)
 	if err != nil {
 		t.Fatal(err)
 	}
-	run := filepath.Join(dir, "run")
-	if err := inversion.Start(context.Background(), cfg, path, run, inversion.Options{Workers: 2}); err != nil {
+	f, err := run.Start(context.Background(), cfg, path, filepath.Join(dir, "run"), run.Options{Workers: 2})
+	if err != nil {
 		t.Fatal(err)
 	}
-	r, err := Load(run)
+	r, err := Load(f)
 	if err != nil {
 		t.Fatal(err)
 	}
 	return r
-}
-
-func TestQuantileSortedMatchesQuantile7(t *testing.T) {
-	v := []float64{3, -1, 4, 1, 5, 9, 2, 6, 5, 3, 5}
-	s := finiteSorted(append(slices.Clone(v), math.NaN(), math.Inf(1)))
-	for _, p := range []float64{0, 0.05, 0.25, 0.5, 0.75, 0.95, 1} {
-		if got, want := quantileSorted(s, p), mcmc.Quantile7(v, p); got != want {
-			t.Errorf("p=%g: %g, want %g", p, got, want)
-		}
-	}
 }
 
 // A density histogram integrates to one over its range, and each bin's density is its count
@@ -183,7 +156,7 @@ func TestRunFigures(t *testing.T) {
 	if slices.ContainsFunc(r.Sampled(), func(p Param) bool { return p.Name == "mantle_outer_radius_km" }) {
 		t.Error("a derived column is among the sampled parameters")
 	}
-	s, err := inversion.Summarize(r.Dir)
+	s, err := results.Summarize(r.Folder)
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -205,7 +178,7 @@ func TestRunFigures(t *testing.T) {
 	// Observation fit: the median of (pred − obs)/σ recomputed from the column.
 	fits := r.ObservationFits()
 	for i, o := range r.Problem.Observations {
-		pred, _ := r.Samples.Float64(inversion.PredictionPrefix + o.Observable.Key)
+		pred, _ := r.Samples.Float64(runfolder.PredictionPrefix + o.Observable.Key)
 		z := make([]float64, len(pred))
 		si := o.Observable.ToSI()
 		for k, v := range pred {
@@ -220,7 +193,7 @@ func TestRunFigures(t *testing.T) {
 
 	// Profiles: the crust density is fixed, so every quantile at the surface is 2800 kg/m3;
 	// at the centre the profile density is the core density parameter of the profiled draws.
-	b, err := r.Bands(inversion.ColDensity)
+	b, err := r.Bands(runfolder.ColDensity)
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -302,7 +275,11 @@ func TestRunFigures(t *testing.T) {
 
 	// The Markdown report names every parameter and links figure files that exist.
 	report := filepath.Join(t.TempDir(), "my report.md")
-	written, err := MarkdownReport(r.Dir, report, Options{}, &notes)
+	s, err = results.Summarize(r.Folder)
+	if err != nil {
+		t.Fatal(err)
+	}
+	written, err := MarkdownReport(r, s, report, Options{}, &notes)
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -316,7 +293,7 @@ func TestRunFigures(t *testing.T) {
 			t.Errorf("report lacks parameter %s", p.Name)
 		}
 	}
-	for _, w := range []string{"`core_state`", "`mass_kg`", "Testa", "run complete", inversion.Caution, r.Checkpoint.ConfigSHA256} {
+	for _, w := range []string{"`core_state`", "`mass_kg`", "Testa", "run complete", runfolder.Caution, r.Checkpoint.ConfigSHA256} {
 		if !strings.Contains(text, w) {
 			t.Errorf("report lacks %q", w)
 		}
@@ -422,9 +399,9 @@ func TestConvergenceNote(t *testing.T) {
 		{"undefined", []*float64{nil, f(1.002)}, []*float64{nil, f(800)}, nil},
 	}
 	for _, c := range cases {
-		s := &inversion.Summary{}
+		s := &results.Summary{}
 		for i := range c.rhat {
-			s.Parameters = append(s.Parameters, inversion.ParamSummary{Name: string(rune('a' + i)), RHat: c.rhat[i], ESSBulk: c.ess[i]})
+			s.Parameters = append(s.Parameters, results.ParamSummary{Name: string(rune('a' + i)), RHat: c.rhat[i], ESSBulk: c.ess[i]})
 		}
 		got := convergenceNote(s)
 		if (got == "") != (c.want == nil) {

@@ -2,23 +2,9 @@ package report
 
 import (
 	"math"
+	"plumb/inversion/mcmc"
 	"slices"
 )
-
-// quantileSorted is the type-7 sample quantile (linear interpolation between order statistics,
-// Hyndman & Fan 1996, the definition mcmc.Quantile7 uses) of an ascending slice.
-func quantileSorted(s []float64, p float64) float64 {
-	n := len(s)
-	if n == 0 {
-		return math.NaN()
-	}
-	h := float64(n-1) * p
-	lo := int(math.Floor(h))
-	if lo >= n-1 {
-		return s[n-1]
-	}
-	return s[lo] + (h-float64(lo))*(s[lo+1]-s[lo])
-}
 
 // finiteSorted returns the finite values of v in ascending order (a copy).
 func finiteSorted(v []float64) []float64 {
@@ -50,7 +36,7 @@ func span(s []float64) (lo, hi float64) {
 // sample s, bin width 2·IQR·n^(−1/3) (Freedman & Diaconis 1981), kept within [minBins, maxBins]
 // (limits: common practice, no source).
 func binCount(s []float64, lo, hi float64, minBins, maxBins int) int {
-	iqr := quantileSorted(s, 0.75) - quantileSorted(s, 0.25)
+	iqr := mcmc.Quantile7Sorted(s, 0.75) - mcmc.Quantile7Sorted(s, 0.25)
 	if !(iqr > 0) {
 		return minBins
 	}

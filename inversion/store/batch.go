@@ -1,15 +1,3 @@
-// Package store reads and writes plumb's on-disk results: columnar batches of
-// posterior draws as flat Parquet part files, and arbitrary files (such as
-// checkpoints) replaced atomically.
-//
-// Every file is written under a temporary name in its destination directory,
-// fsynced, renamed into place and the directory fsynced, so a reader never
-// sees a partially written file even if the writer is killed.
-//
-// The Parquet files use only widely supported, flat, REQUIRED columns:
-// DOUBLE, INT64 and BYTE_ARRAY annotated as STRING, PLAIN encoded, compressed
-// with zstd (fastest level) and written with version 1 data pages, so that pandas/pyarrow, DuckDB and
-// similar tools read them without any extra code.
 package store
 
 import (

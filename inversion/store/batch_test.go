@@ -1,9 +1,6 @@
 package store
 
 import (
-	"os"
-	"path/filepath"
-	"reflect"
 	"slices"
 	"strings"
 	"testing"
@@ -55,8 +52,6 @@ func TestBatchAccessors(t *testing.T) {
 		t.Error("nil batch has a column")
 	}
 }
-
-func second[T any](_ T, ok bool) bool { return ok }
 
 func TestNewBatch(t *testing.T) {
 	cols := []Column{{Name: "a", Kind: Float64}, {Name: "b", Kind: Int64}, {Name: "c", Kind: String}}
@@ -146,35 +141,5 @@ func TestKindString(t *testing.T) {
 		if got := k.String(); got != want {
 			t.Errorf("Kind(%d).String() = %q, want %q", int(k), got, want)
 		}
-	}
-}
-
-func TestPartName(t *testing.T) {
-	for i, want := range map[int]string{0: "part-00000.parquet", 42: "part-00042.parquet", 99999: "part-99999.parquet", 123456: "part-123456.parquet"} {
-		if got := PartName(i); got != want {
-			t.Errorf("PartName(%d) = %q, want %q", i, got, want)
-		}
-	}
-}
-
-// Part indices beyond five digits still list in index order.
-func TestListPartsNumericOrder(t *testing.T) {
-	dir := t.TempDir()
-	for _, i := range []int{100000, 2, 99999, 0} {
-		if err := os.WriteFile(filepath.Join(dir, PartName(i)), nil, 0o644); err != nil {
-			t.Fatal(err)
-		}
-	}
-	got, err := ListParts(dir)
-	if err != nil {
-		t.Fatal(err)
-	}
-	var names []string
-	for _, p := range got {
-		names = append(names, filepath.Base(p))
-	}
-	want := []string{PartName(0), PartName(2), PartName(99999), PartName(100000)}
-	if !reflect.DeepEqual(names, want) {
-		t.Errorf("order %v, want %v", names, want)
 	}
 }
